@@ -1,0 +1,449 @@
+//! CaseFile → Case: defaults filled in, every problem found in one pass, each named by
+//! its key path with the value given and what would be valid.
+
+use super::file::*;
+use crate::fluid::{ConstantFluid, Fluid, Props, Water};
+use crate::model::{Arrangement, Exchanger, Stream};
+use crate::solve::SteadySettings;
+use crate::transfer::{Channel, FilmCorrelation, FixedFilm, Gnielinski, Wall, NU_TUBE_LAMINAR_T};
+use std::f64::consts::PI;
+use std::path::Path;
+
+/// One thing wrong with a case, tied to its key.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Problem {
+    /// Key path, e.g. `hot.mass_flow_kg_s`.
+    pub key: String,
+    /// What is wrong and what would be valid.
+    pub message: String,
+}
+
+impl std::fmt::Display for Problem {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}: {}", self.key, self.message)
+    }
+}
+
+/// Why a case could not be read.
+#[derive(Debug, thiserror::Error)]
+pub enum CaseError {
+    /// The file could not be read.
+    #[error("cannot read case file {path}: {source}")]
+    Io {
+        /// Path given.
+        path: String,
+        /// OS error.
+        source: std::io::Error,
+    },
+    /// TOML syntax, a missing key, an unknown key or a wrong type.
+    #[error("{origin}: {message}")]
+    Syntax {
+        /// File name.
+        origin: String,
+        /// Parser message with line and column.
+        message: String,
+    },
+    /// Values that parse but are not valid.
+    #[error("{origin}: {} problem(s):\n{}", problems.len(), problems.iter().map(|p| format!("  - {p}")).collect::<Vec<_>>().join("\n"))]
+    Invalid {
+        /// File name.
+        origin: String,
+        /// Every problem found.
+        problems: Vec<Problem>,
+    },
+}
+
+/// Which side of the wall a stream is on, for a double pipe.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TubeSide {
+    /// The hot stream flows in the inner tube.
+    Hot,
+    /// The cold stream flows in the inner tube.
+    Cold,
+}
+
+/// Validated geometry.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Geometry {
+    /// Inner tube inside an outer pipe; one stream in the tube, the other in the annulus.
+    DoublePipe {
+        /// Tube inner diameter, m.
+        di: f64,
+        /// Tube outer diameter, m.
+        d_o: f64,
+        /// Outer pipe inner diameter, m.
+        ds: f64,
+        /// Wall conductivity, W/(m·K).
+        k: f64,
+        /// Stream in the tube.
+        tube_side: TubeSide,
+    },
+    /// Generic plane wall with given area per length and per-stream channels.
+    PlaneWall {
+        /// Area per metre, m²/m.
+        area_per_length: f64,
+        /// Thickness, m.
+        thickness: f64,
+        /// Conductivity, W/(m·K).
+        k: f64,
+        /// Hot (flow area, hydraulic diameter).
+        hot: (Option<f64>, Option<f64>),
+        /// Cold (flow area, hydraulic diameter).
+        cold: (Option<f64>, Option<f64>),
+    },
+}
+
+/// Validated fluid choice.
+#[derive(Debug, Clone, PartialEq)]
+pub enum FluidSpec {
+    /// IAPWS-IF97 water, phase from the inlet state.
+    Water,
+    /// Constant properties.
+    Constant(Props),
+}
+
+/// Validated film model.
+#[derive(Debug, Clone, PartialEq)]
+pub enum FilmSpec {
+    /// Gnielinski with laminar fallback.
+    Gnielinski,
+    /// Fixed value, W/(m²·K).
+    Fixed(f64),
+}
+
+/// Validated stream.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StreamSpec {
+    /// Fluid.
+    pub fluid: FluidSpec,
+    /// Inlet, °C.
+    pub inlet_c: f64,
+    /// Mass flow, kg/s.
+    pub mass_flow_kg_s: f64,
+    /// Pressure, Pa (absolute).
+    pub pressure_pa: f64,
+    /// Fouling, m²·K/W.
+    pub fouling_m2k_w: f64,
+    /// Film model.
+    pub film: FilmSpec,
+}
+
+/// A valid case: everything needed to build and solve an exchanger.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Case {
+    /// Name (output folder).
+    pub name: String,
+    /// Arrangement.
+    pub arrangement: Arrangement,
+    /// Length, m.
+    pub length_m: f64,
+    /// Geometry.
+    pub geometry: Geometry,
+    /// Hot stream.
+    pub hot: StreamSpec,
+    /// Cold stream.
+    pub cold: StreamSpec,
+    /// Steady solver settings.
+    pub solver: SteadySettings,
+    /// Legal but suspicious inputs.
+    pub warnings: Vec<String>,
+}
+
+/// Read and validate a case file.
+pub fn load(path: &Path) -> Result<Case, CaseError> {
+    let text = std::fs::read_to_string(path).map_err(|source| CaseError::Io { path: path.display().to_string(), source })?;
+    let stem = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "case".into());
+    parse_str(&text, &path.display().to_string(), &stem)
+}
+
+/// Parse and validate case text; `origin` names it in messages, `default_name` is used
+/// when the file has no `name`.
+pub fn parse_str(text: &str, origin: &str, default_name: &str) -> Result<Case, CaseError> {
+    let file: CaseFile =
+        toml::from_str(text).map_err(|e| CaseError::Syntax { origin: origin.into(), message: e.to_string() })?;
+    validate(&file, default_name).map_err(|problems| CaseError::Invalid { origin: origin.into(), problems })
+}
+
+/// Standard atmosphere, Pa: the default stream pressure.
+const ATMOSPHERE_PA: f64 = 101_325.0;
+
+struct Checker {
+    problems: Vec<Problem>,
+    warnings: Vec<String>,
+}
+
+impl Checker {
+    fn fail(&mut self, key: &str, message: String) {
+        self.problems.push(Problem { key: key.into(), message });
+    }
+    /// A finite value strictly above zero.
+    fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
+        if !(v.is_finite() && v > 0.0) {
+            self.fail(key, format!("{v} {unit} is not valid: it must be a finite number above zero"));
+        }
+        v
+    }
+    fn required(&mut self, key: &str, v: Option<f64>, unit: &str, why: &str) -> f64 {
+        match v {
+            Some(v) => self.positive(key, v, unit),
+            None => {
+                self.fail(key, format!("is missing: give a value in {unit} ({why})"));
+                f64::NAN
+            }
+        }
+    }
+    fn looks_like_mm(&mut self, key: &str, v: f64) {
+        if v.is_finite() && v > 2.0 {
+            self.warnings.push(format!("{key} = {v} m is very large: was it entered in millimetres? (keys ending _m are metres)"));
+        }
+    }
+}
+
+fn validate(f: &CaseFile, default_name: &str) -> Result<Case, Vec<Problem>> {
+    let mut c = Checker { problems: Vec::new(), warnings: Vec::new() };
+    let length_m = c.positive("length_m", f.length_m, "m");
+    let geometry = geometry(&mut c, f);
+    let hot = stream(&mut c, "hot", &f.hot);
+    let cold = stream(&mut c, "cold", &f.cold);
+    if f.hot.inlet_temperature_C <= f.cold.inlet_temperature_C {
+        c.fail(
+            "hot.inlet_temperature_C",
+            format!(
+                "the hot inlet ({} °C) must be hotter than the cold inlet (cold.inlet_temperature_C = {} °C); \
+                 if the streams are the other way round, swap the [hot] and [cold] sections",
+                f.hot.inlet_temperature_C, f.cold.inlet_temperature_C
+            ),
+        );
+    }
+    let defaults = SteadySettings::default();
+    let cells = f.solver.cells.unwrap_or(defaults.cells as i64);
+    if !(1..=10_000_000).contains(&cells) {
+        c.fail("solver.cells", format!("{cells} is not valid: use a whole number from 1 to 10 000 000"));
+    }
+    let tolerance = f.solver.residual_tolerance.unwrap_or(defaults.tolerance);
+    if !(tolerance > 0.0 && tolerance < 1.0) {
+        c.fail("solver.residual_tolerance", format!("{tolerance} is not valid: use a value between 0 and 1 (exclusive), e.g. 1e-10"));
+    }
+    let max_iterations = f.solver.max_iterations.unwrap_or(defaults.max_iterations as i64);
+    if !(1..=10_000).contains(&max_iterations) {
+        c.fail("solver.max_iterations", format!("{max_iterations} is not valid: use a whole number from 1 to 10 000"));
+    }
+    if !c.problems.is_empty() {
+        return Err(c.problems);
+    }
+    Ok(Case {
+        name: f.name.clone().unwrap_or_else(|| default_name.to_string()),
+        arrangement: f.arrangement,
+        length_m,
+        geometry,
+        hot,
+        cold,
+        solver: SteadySettings { cells: cells as usize, tolerance, max_iterations: max_iterations as usize },
+        warnings: c.warnings,
+    })
+}
+
+fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
+    let g = &f.geometry;
+    let k = c.positive("geometry.wall_conductivity_W_mK", g.wall_conductivity_W_mK, "W/(m·K)");
+    match g.kind {
+        GeometryKind::DoublePipe => {
+            let why = "needed for a double pipe";
+            let di = c.required("geometry.tube_inner_diameter_m", g.tube_inner_diameter_m, "m", why);
+            let d_o = c.required("geometry.tube_outer_diameter_m", g.tube_outer_diameter_m, "m", why);
+            let ds = c.required("geometry.shell_inner_diameter_m", g.shell_inner_diameter_m, "m", why);
+            for (key, v) in [("geometry.tube_inner_diameter_m", di), ("geometry.tube_outer_diameter_m", d_o), ("geometry.shell_inner_diameter_m", ds)] {
+                c.looks_like_mm(key, v);
+            }
+            if di >= d_o {
+                c.fail("geometry.tube_inner_diameter_m", format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"));
+            }
+            if d_o >= ds {
+                c.fail("geometry.shell_inner_diameter_m", format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)"));
+            }
+            let tube_side = match g.tube_side {
+                Some(SideName::Hot) => TubeSide::Hot,
+                Some(SideName::Cold) => TubeSide::Cold,
+                None => {
+                    c.fail("geometry.tube_side", "is missing: say which stream flows in the inner tube, \"hot\" or \"cold\"".into());
+                    TubeSide::Hot
+                }
+            };
+            for (key, v) in [("area_per_length_m2_m", g.area_per_length_m2_m), ("wall_thickness_m", g.wall_thickness_m), ("hot_flow_area_m2", g.hot_flow_area_m2), ("hot_hydraulic_diameter_m", g.hot_hydraulic_diameter_m), ("cold_flow_area_m2", g.cold_flow_area_m2), ("cold_hydraulic_diameter_m", g.cold_hydraulic_diameter_m)] {
+                if v.is_some() {
+                    c.fail(&format!("geometry.{key}"), "belongs to kind = \"plane_wall\", not \"double_pipe\": remove it".into());
+                }
+            }
+            Geometry::DoublePipe { di, d_o, ds, k, tube_side }
+        }
+        GeometryKind::PlaneWall => {
+            let why = "needed for a plane wall";
+            let area = c.required("geometry.area_per_length_m2_m", g.area_per_length_m2_m, "m²/m", why);
+            let thickness = c.required("geometry.wall_thickness_m", g.wall_thickness_m, "m", why);
+            let mut channel = |side: &str, film: FilmName, area: Option<f64>, dh: Option<f64>| {
+                let needs = film == FilmName::Gnielinski;
+                let why = "needed when the film coefficient is computed from the flow";
+                let a_key = format!("geometry.{side}_flow_area_m2");
+                let d_key = format!("geometry.{side}_hydraulic_diameter_m");
+                let a = match (area, needs) {
+                    (None, true) => Some(c.required(&a_key, None, "m²", why)),
+                    (Some(v), _) => Some(c.positive(&a_key, v, "m²")),
+                    (None, false) => None,
+                };
+                let d = match (dh, needs) {
+                    (None, true) => Some(c.required(&d_key, None, "m", why)),
+                    (Some(v), _) => Some(c.positive(&d_key, v, "m")),
+                    (None, false) => None,
+                };
+                if let Some(d) = d {
+                    c.looks_like_mm(&d_key, d);
+                }
+                (a, d)
+            };
+            let hot = channel("hot", f.hot.film, g.hot_flow_area_m2, g.hot_hydraulic_diameter_m);
+            let cold = channel("cold", f.cold.film, g.cold_flow_area_m2, g.cold_hydraulic_diameter_m);
+            for (key, v) in [("tube_inner_diameter_m", g.tube_inner_diameter_m), ("tube_outer_diameter_m", g.tube_outer_diameter_m), ("shell_inner_diameter_m", g.shell_inner_diameter_m)] {
+                if v.is_some() {
+                    c.fail(&format!("geometry.{key}"), "belongs to kind = \"double_pipe\", not \"plane_wall\": remove it".into());
+                }
+            }
+            if g.tube_side.is_some() {
+                c.fail("geometry.tube_side", "belongs to kind = \"double_pipe\", not \"plane_wall\": remove it".into());
+            }
+            Geometry::PlaneWall { area_per_length: area, thickness, k, hot, cold }
+        }
+    }
+}
+
+fn stream(c: &mut Checker, side: &str, s: &StreamFile) -> StreamSpec {
+    let key = |k: &str| format!("{side}.{k}");
+    let inlet_c = s.inlet_temperature_C;
+    if !inlet_c.is_finite() || inlet_c <= -273.15 {
+        c.fail(&key("inlet_temperature_C"), format!("{inlet_c} °C is not valid: give a finite temperature above −273.15 °C"));
+    }
+    let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
+    let pressure_pa = match s.pressure_bar_abs {
+        Some(p) => c.positive(&key("pressure_bar_abs"), p, "bar") * 1e5,
+        None => ATMOSPHERE_PA,
+    };
+    let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);
+    if !(fouling_m2k_w.is_finite() && fouling_m2k_w >= 0.0) {
+        c.fail(&key("fouling_m2K_W"), format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001"));
+    } else if fouling_m2k_w > 0.01 {
+        c.warnings.push(format!("{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units"));
+    }
+    let film = match (s.film, s.film_coefficient_W_m2K) {
+        (FilmName::Fixed, Some(h)) => FilmSpec::Fixed(c.positive(&key("film_coefficient_W_m2K"), h, "W/(m²·K)")),
+        (FilmName::Fixed, None) => {
+            c.fail(&key("film_coefficient_W_m2K"), "is missing: film = \"fixed\" needs a coefficient in W/(m²·K)".into());
+            FilmSpec::Fixed(f64::NAN)
+        }
+        (FilmName::Gnielinski, Some(_)) => {
+            c.fail(&key("film_coefficient_W_m2K"), "is only used with film = \"fixed\": remove it, or set film = \"fixed\"".into());
+            FilmSpec::Gnielinski
+        }
+        (FilmName::Gnielinski, None) => FilmSpec::Gnielinski,
+    };
+    let fluid = match (s.fluid, &s.properties) {
+        (FluidName::Constant, Some(p)) => FluidSpec::Constant(Props {
+            density: c.positive(&key("properties.density_kg_m3"), p.density_kg_m3, "kg/m³"),
+            cp: c.positive(&key("properties.specific_heat_J_kgK"), p.specific_heat_J_kgK, "J/(kg·K)"),
+            viscosity: c.positive(&key("properties.viscosity_Pa_s"), p.viscosity_Pa_s, "Pa·s"),
+            conductivity: c.positive(&key("properties.conductivity_W_mK"), p.conductivity_W_mK, "W/(m·K)"),
+        }),
+        (FluidName::Constant, None) => {
+            c.fail(&key("properties"), format!("is missing: fluid = \"constant\" needs a [{side}.properties] table with density_kg_m3, specific_heat_J_kgK, viscosity_Pa_s, conductivity_W_mK"));
+            FluidSpec::Constant(Props { density: 1.0, cp: 1.0, viscosity: 1.0, conductivity: 1.0 })
+        }
+        (FluidName::Water, Some(_)) => {
+            c.fail(&key("properties"), "is only used with fluid = \"constant\": water properties come from IAPWS-IF97; remove the table".into());
+            FluidSpec::Water
+        }
+        (FluidName::Water, None) => {
+            check_water_inlet(c, side, pressure_pa, inlet_c);
+            FluidSpec::Water
+        }
+    };
+    StreamSpec { fluid, inlet_c, mass_flow_kg_s, pressure_pa, fouling_m2k_w, film }
+}
+
+fn check_water_inlet(c: &mut Checker, side: &str, pressure_pa: f64, inlet_c: f64) {
+    if !(pressure_pa.is_finite() && pressure_pa > 0.0 && inlet_c.is_finite()) {
+        return; // already reported
+    }
+    let water = match Water::new(pressure_pa, Water::phase_at(pressure_pa, inlet_c)) {
+        Ok(w) => w,
+        Err(e) => {
+            c.fail(&format!("{side}.pressure_bar_abs"), format!("{e}"));
+            return;
+        }
+    };
+    let r = water.range();
+    if !(inlet_c >= r.min_c && inlet_c <= r.max_c) {
+        c.fail(
+            &format!("{side}.inlet_temperature_C"),
+            format!("{inlet_c} °C is outside the valid range {:.2} … {:.2} °C for {}: {}", r.min_c, r.max_c, water.name(), r.reason),
+        );
+    }
+}
+
+impl Case {
+    /// Build the exchanger model (fluid tables are made here, once).
+    pub fn build(&self) -> Exchanger {
+        let (wall, hot_channel, cold_channel, reference) = match self.geometry {
+            Geometry::DoublePipe { di, d_o, ds, k, tube_side } => {
+                let tube = Channel {
+                    flow_area_m2: Some(PI * di * di / 4.0),
+                    hydraulic_diameter_m: Some(di),
+                    area_per_length_m: PI * di,
+                    laminar_nusselt: NU_TUBE_LAMINAR_T,
+                };
+                let annulus = Channel {
+                    flow_area_m2: Some(PI * (ds * ds - d_o * d_o) / 4.0),
+                    hydraulic_diameter_m: Some(ds - d_o),
+                    area_per_length_m: PI * d_o,
+                    laminar_nusselt: Channel::annulus_laminar_nusselt(d_o / ds),
+                };
+                let wall = Wall::Tube { inner_diameter_m: di, outer_diameter_m: d_o, conductivity_w_mk: k };
+                match tube_side {
+                    TubeSide::Hot => (wall, tube, annulus, PI * d_o),
+                    TubeSide::Cold => (wall, annulus, tube, PI * d_o),
+                }
+            }
+            Geometry::PlaneWall { area_per_length, thickness, k, hot, cold } => {
+                // Laminar fallback: parallel plates heated on one side, the other insulated
+                // (Incropera Table 8.2, Di/Do → 1): Nu = 4.86.
+                let channel = |(a, d): (Option<f64>, Option<f64>)| Channel {
+                    flow_area_m2: a,
+                    hydraulic_diameter_m: d,
+                    area_per_length_m: area_per_length,
+                    laminar_nusselt: Channel::annulus_laminar_nusselt(1.0),
+                };
+                let wall = Wall::Plane { thickness_m: thickness, conductivity_w_mk: k, area_per_length_m: area_per_length };
+                (wall, channel(hot), channel(cold), area_per_length)
+            }
+        };
+        Exchanger {
+            arrangement: self.arrangement,
+            length_m: self.length_m,
+            hot: build_stream(&self.hot, hot_channel),
+            cold: build_stream(&self.cold, cold_channel),
+            wall,
+            reference_area_per_length_m: reference,
+        }
+    }
+}
+
+fn build_stream(s: &StreamSpec, channel: Channel) -> Stream {
+    let fluid: Box<dyn Fluid> = match &s.fluid {
+        FluidSpec::Constant(p) => Box::new(ConstantFluid::new(*p)),
+        FluidSpec::Water => Box::new(
+            Water::new(s.pressure_pa, Water::phase_at(s.pressure_pa, s.inlet_c)).expect("pressure checked in validation"),
+        ),
+    };
+    let film: Box<dyn FilmCorrelation> = match s.film {
+        FilmSpec::Gnielinski => Box::new(Gnielinski),
+        FilmSpec::Fixed(h) => Box::new(FixedFilm { h }),
+    };
+    Stream { fluid, mass_flow_kg_s: s.mass_flow_kg_s, inlet_c: s.inlet_c, fouling_m2k_w: s.fouling_m2k_w, film, channel }
+}

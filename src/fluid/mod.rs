@@ -1,0 +1,106 @@
+//! Fluid properties: one trait the solver uses, and the sources behind it.
+//!
+//! Owns: density, specific heat, enthalpy, viscosity and conductivity as functions of
+//! temperature at the stream's (fixed) pressure, and each fluid's valid range.
+//! Must not: touch files or the terminal. A constructed fluid is valid; its property
+//! functions accept any temperature (they clamp to the valid range so that Newton
+//! iterates stay finite) and the solver checks the converged state against
+//! [`Fluid::range_c`].
+
+mod constant;
+mod table;
+mod water;
+
+pub use constant::ConstantFluid;
+pub use table::UniformTable;
+pub use water::{Water, WaterPhase};
+
+use std::fmt::Debug;
+
+/// Local transport and thermodynamic properties (SI units).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Props {
+    /// Density, kg/m³.
+    pub density: f64,
+    /// Isobaric specific heat, J/(kg·K).
+    pub cp: f64,
+    /// Dynamic viscosity, Pa·s.
+    pub viscosity: f64,
+    /// Thermal conductivity, W/(m·K).
+    pub conductivity: f64,
+}
+
+impl Props {
+    /// Prandtl number μ·cp/k.
+    pub fn prandtl(&self) -> f64 {
+        self.viscosity * self.cp / self.conductivity
+    }
+}
+
+/// Why a fluid's valid range ends where it does.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RangeLimit {
+    /// Lower end of the valid range, °C.
+    pub min_c: f64,
+    /// Upper end of the valid range, °C.
+    pub max_c: f64,
+    /// Plain-words reason for the limits (e.g. the saturation temperature).
+    pub reason: String,
+}
+
+/// A single-phase fluid at a fixed pressure.
+pub trait Fluid: Send + Sync + Debug {
+    /// Short name for reports.
+    fn name(&self) -> String;
+    /// Valid temperature range at this pressure, °C, with the reason for it.
+    fn range(&self) -> RangeLimit;
+    /// Properties at temperature `t_c` (°C); clamped to the valid range.
+    fn props(&self, t_c: f64) -> Props;
+    /// Specific enthalpy, J/kg (fixed but arbitrary reference). Outside the valid range it
+    /// continues linearly with the end-point cp, so that it stays monotone.
+    fn enthalpy(&self, t_c: f64) -> f64;
+
+    /// Temperature (°C) whose enthalpy is `h` (J/kg): Newton on h(T) with cp as slope,
+    /// safeguarded by bisection inside a bracket. Enthalpy is monotone in T for a
+    /// single-phase fluid, so the root is unique.
+    fn temperature_from_enthalpy(&self, h: f64) -> f64 {
+        let r = self.range();
+        let (mut lo, mut hi) = (r.min_c - 1000.0, r.max_c + 1000.0);
+        let mut t = 0.5 * (r.min_c + r.max_c);
+        for _ in 0..100 {
+            let f = self.enthalpy(t) - h;
+            if f > 0.0 {
+                hi = t;
+            } else {
+                lo = t;
+            }
+            let cp = self.props(t).cp;
+            let mut next = t - f / cp;
+            if !(next > lo && next < hi) {
+                next = 0.5 * (lo + hi);
+            }
+            if (next - t).abs() < 1e-12 * (1.0 + t.abs()) {
+                return next;
+            }
+            t = next;
+        }
+        t
+    }
+}
+
+/// Errors building a fluid from its description.
+#[derive(Debug, thiserror::Error, PartialEq)]
+pub enum FluidError {
+    /// Pressure outside what the property source covers.
+    #[error("pressure {pressure_bar} bar is outside {min_bar}..{max_bar} bar covered by {fluid}")]
+    PressureOutOfRange {
+        /// Fluid name.
+        fluid: String,
+        /// Given pressure, bar (absolute).
+        pressure_bar: f64,
+        /// Lowest valid, bar.
+        min_bar: f64,
+        /// Highest valid, bar.
+        max_bar: f64,
+    },
+}

@@ -1,0 +1,169 @@
+//! hxgrid command line: parse arguments, call the library, print, set the exit code.
+
+mod cli;
+
+use clap::Parser;
+use cli::{Cli, Command};
+use hxgrid::case::{self, Case, CaseError};
+use hxgrid::results::SteadyReport;
+use hxgrid::solve::Observer;
+use hxgrid::study::{self, RatingOptions};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+const EXIT_INPUT: u8 = 3;
+const EXIT_SOLVER: u8 = 4;
+const EXIT_OUTPUT: u8 = 5;
+
+fn main() -> ExitCode {
+    let _ = cli::EXIT_HELP;
+    let args = Cli::parse();
+    match args.command {
+        Command::Run { case, out, grid_study, quiet } => run(&case, out, grid_study.map(|g| g as usize), quiet),
+        Command::Check { case } => check(&case),
+        Command::New { path } => new_case(&path),
+    }
+}
+
+fn load(path: &Path) -> Result<Case, ExitCode> {
+    case::load(path).map_err(|e| {
+        match &e {
+            CaseError::Invalid { .. } => eprintln!("error: invalid case {e}"),
+            _ => eprintln!("error: {e}"),
+        }
+        ExitCode::from(EXIT_INPUT)
+    })
+}
+
+fn print_warnings(case: &Case) {
+    for w in &case.warnings {
+        eprintln!("warning: {w}");
+    }
+}
+
+fn check(path: &Path) -> ExitCode {
+    match load(path) {
+        Ok(case) => {
+            print_warnings(&case);
+            println!(
+                "{}: valid ({} case \"{}\", {} cells)",
+                path.display(),
+                case.arrangement.as_str(),
+                case.name,
+                case.solver.cells
+            );
+            ExitCode::SUCCESS
+        }
+        Err(code) => code,
+    }
+}
+
+fn new_case(path: &Path) -> ExitCode {
+    if path.exists() {
+        eprintln!("error: {} already exists; hxgrid new never overwrites a file: choose another name", path.display());
+        return ExitCode::from(EXIT_INPUT);
+    }
+    match std::fs::write(path, case::STARTER) {
+        Ok(()) => {
+            println!("wrote {} — edit it, then: hxgrid run {}", path.display(), path.display());
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: cannot write {}: {e}", path.display());
+            ExitCode::from(EXIT_OUTPUT)
+        }
+    }
+}
+
+/// Prints Newton progress when not quiet.
+struct Progress {
+    quiet: bool,
+}
+impl Observer for Progress {
+    fn iteration(&mut self, k: usize, residual: f64) {
+        if !self.quiet {
+            eprintln!("  Newton iteration {k:>2}: relative residual {residual:.3e}");
+        }
+    }
+}
+
+fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, quiet: bool) -> ExitCode {
+    let case = match load(path) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    print_warnings(&case);
+    let exchanger = case.build();
+    let options = RatingOptions { study_levels: grid_study };
+    let report = match study::rate(&case.name, &exchanger, &case.solver, &options, &mut Progress { quiet }) {
+        Ok(r) => r,
+        Err(e) => {
+            eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
+            return ExitCode::from(EXIT_SOLVER);
+        }
+    };
+    let dir = out.unwrap_or_else(|| Path::new("output").join(&case.name));
+    match hxgrid::output::write_steady(&report, &dir) {
+        Ok(files) => {
+            if !quiet {
+                print_report(&report);
+                println!("\nwrote:");
+                for f in files {
+                    println!("  {}", f.display());
+                }
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(EXIT_OUTPUT)
+        }
+    }
+}
+
+fn print_report(r: &SteadyReport) {
+    let l = &r.lumped;
+    println!("\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+    println!("  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
+    println!("\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
+    println!("{:<22}{:>16.1}{:>16.1}{:>11.2}%", "duty (W)", r.duty_W, l.duty_w, r.grid_vs_lumped.duty_difference_percent);
+    println!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "hot outlet (°C)", r.hot_outlet_C, l.hot_outlet_c, r.grid_vs_lumped.hot_outlet_difference_K);
+    println!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "cold outlet (°C)", r.cold_outlet_C, l.cold_outlet_c, r.grid_vs_lumped.cold_outlet_difference_K);
+    println!("{:<22}{:>16.2}{:>16.2}{:>11.2}%", "UA (W/K)", r.UA_W_K, l.ua_w_k, r.grid_vs_lumped.ua_difference_percent);
+    println!("{:<22}{:>16.5}{:>16.5}", "effectiveness", r.effectiveness, l.effectiveness);
+    println!("{:<22}{:>16.5}{:>16.5}", "NTU", r.ntu, l.ntu);
+    println!("{:<22}{:>16.5}{:>16.5}", "capacity ratio", r.capacity_ratio, l.capacity_ratio);
+    if let (Some(a), Some(b)) = (r.lmtd_K, l.lmtd_k) {
+        println!("{:<22}{:>16.4}{:>16.4}", "LMTD (K)", a, b);
+    }
+    println!("\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
+    if let Some(g) = &r.grid_error_estimate {
+        println!(
+            "estimated grid error (vs {} cells, Richardson order {}): duty {:.3e} W, hot outlet {:.2e} K, cold outlet {:.2e} K",
+            g.coarse_cells, g.order, g.estimated_error.duty_w, g.estimated_error.hot_outlet_c, g.estimated_error.cold_outlet_c
+        );
+    }
+    if let Some(s) = &r.grid_study {
+        println!("\ngrid study:");
+        println!("{:>10}{:>18}{:>16}{:>16}", "cells", "duty (W)", "hot out (°C)", "cold out (°C)");
+        for lv in &s.levels {
+            println!("{:>10}{:>18.6}{:>16.8}{:>16.8}", lv.cells, lv.values.duty_w, lv.values.hot_outlet_c, lv.values.cold_outlet_c);
+        }
+        let fmt = |o: Option<f64>| o.map(|p| format!("{p:.3}")).unwrap_or_else(|| "n/a (round-off)".into());
+        println!(
+            "observed order: duty {}, hot outlet {}, cold outlet {} (scheme: {})",
+            fmt(s.observed_order.duty),
+            fmt(s.observed_order.hot_outlet),
+            fmt(s.observed_order.cold_outlet),
+            s.formal_order
+        );
+        println!(
+            "Richardson extrapolation: duty {:.6} W, hot outlet {:.8} °C, cold outlet {:.8} °C",
+            s.extrapolated.duty_w, s.extrapolated.hot_outlet_c, s.extrapolated.cold_outlet_c
+        );
+    }
+    for w in &r.warnings {
+        println!("warning: {w}");
+    }
+    println!("\nCaution: {}", r.caution);
+}

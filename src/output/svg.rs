@@ -1,0 +1,106 @@
+//! SVG plots (the only place plotters appears).
+
+use super::OutputError;
+use crate::results::SteadyReport;
+use plotters::prelude::*;
+use std::path::Path;
+
+const HOT: RGBColor = RGBColor(200, 40, 30);
+const COLD: RGBColor = RGBColor(30, 90, 200);
+const WALL: RGBColor = RGBColor(90, 90, 90);
+const SIZE: (u32, u32) = (900, 560);
+
+fn plot_err(path: &Path) -> impl Fn(String) -> OutputError + '_ {
+    move |message| OutputError::Plot { path: path.display().to_string(), message }
+}
+
+/// Padded range of a set of values.
+fn span(values: impl Iterator<Item = f64>) -> (f64, f64) {
+    let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
+    let pad = ((hi - lo) * 0.06).max(1e-6 * hi.abs().max(1.0));
+    (lo - pad, hi + pad)
+}
+
+/// Hot, cold and wall temperature along the length.
+pub fn temperatures(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, SIZE).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let (lo, hi) = span(r.hot_faces_c.iter().chain(&r.cold_faces_c).copied());
+    let mut chart = ChartBuilder::on(&root)
+        .caption(format!("{}: temperatures along the exchanger ({})", r.case, r.arrangement), ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(50)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..r.length_m, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart
+        .configure_mesh()
+        .x_desc("position along the hot stream's flow, x (m)")
+        .y_desc("temperature (°C)")
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    let series: [(&str, RGBColor, Vec<(f64, f64)>); 3] = [
+        ("hot stream", HOT, r.faces_m.iter().copied().zip(r.hot_faces_c.iter().copied()).collect()),
+        ("cold stream", COLD, r.faces_m.iter().copied().zip(r.cold_faces_c.iter().copied()).collect()),
+        ("wall (mid-thickness)", WALL, r.profile.iter().map(|p| (p.x_m, p.wall_c)).collect()),
+    ];
+    for (label, color, pts) in series {
+        chart
+            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label(label)
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+    }
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .position(SeriesLabelPosition::UpperRight)
+        .label_font(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    root.present().map_err(|x| e(x.to_string()))
+}
+
+/// Local heat flux (upper panel) and local U (lower panel) along the length.
+pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, (SIZE.0, SIZE.1 + 160)).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let panels = root.split_evenly((2, 1));
+    let data: [(&str, &str, RGBColor, Vec<(f64, f64)>); 2] = [
+        (
+            "local heat flux",
+            "heat flux q'' (W/m²)",
+            HOT,
+            r.profile.iter().map(|p| (p.x_m, p.heat_flux_w_m2)).collect(),
+        ),
+        (
+            "local overall coefficient",
+            "U (W/m²·K)",
+            COLD,
+            r.profile.iter().map(|p| (p.x_m, p.u_w_m2k)).collect(),
+        ),
+    ];
+    for (panel, (title, ylabel, color, pts)) in panels.iter().zip(data) {
+        let (lo, hi) = span(pts.iter().map(|p| p.1));
+        let mut chart = ChartBuilder::on(panel)
+            .caption(format!("{}: {title} (on the reference wall area)", r.case), ("sans-serif", 18))
+            .margin(12)
+            .x_label_area_size(45)
+            .y_label_area_size(80)
+            .build_cartesian_2d(0.0..r.length_m, lo..hi)
+            .map_err(|x| e(x.to_string()))?;
+        chart
+            .configure_mesh()
+            .x_desc("position along the hot stream's flow, x (m)")
+            .y_desc(ylabel)
+            .label_style(("sans-serif", 14))
+            .draw()
+            .map_err(|x| e(x.to_string()))?;
+        chart.draw_series(LineSeries::new(pts, color.stroke_width(2))).map_err(|x| e(x.to_string()))?;
+    }
+    root.present().map_err(|x| e(x.to_string()))
+}

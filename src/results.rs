@@ -1,0 +1,230 @@
+#![allow(non_snake_case)] // field names carry their SI units (duty_W, UA_W_K) as in summary.json
+//! Plain, serialisable results. Writers turn these into files; nothing here computes.
+
+use crate::lumped::LumpedResult;
+use serde::Serialize;
+
+/// The caution every report carries.
+pub const CAUTION: &str = "Engineering estimate from a one-dimensional single-phase model. Boiling and \
+condensation are not computed (a stream that would cross saturation is stopped with an error). Heat \
+exchangers are pressure equipment: verify results against the applicable codes and standards and have \
+them reviewed under licensed engineering practice before use in design or operation.";
+
+/// Duty and outlet temperatures: the quantities grid studies track.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct KeyQuantities {
+    /// Duty, W.
+    #[serde(rename = "duty_W")]
+    pub duty_w: f64,
+    /// Hot outlet, °C.
+    #[serde(rename = "hot_outlet_C")]
+    pub hot_outlet_c: f64,
+    /// Cold outlet, °C.
+    #[serde(rename = "cold_outlet_C")]
+    pub cold_outlet_c: f64,
+}
+
+impl KeyQuantities {
+    /// Apply `f` to each pair of matching fields.
+    pub fn zip(&self, other: &Self, f: impl Fn(f64, f64) -> f64) -> Self {
+        Self {
+            duty_w: f(self.duty_w, other.duty_w),
+            hot_outlet_c: f(self.hot_outlet_c, other.hot_outlet_c),
+            cold_outlet_c: f(self.cold_outlet_c, other.cold_outlet_c),
+        }
+    }
+}
+
+/// Local values at one cell centre.
+#[derive(Debug, Clone, Serialize)]
+pub struct ProfileRow {
+    /// Cell centre, m.
+    pub x_m: f64,
+    /// Hot bulk temperature, °C.
+    pub hot_c: f64,
+    /// Cold bulk temperature, °C.
+    pub cold_c: f64,
+    /// Wall mid-thickness temperature, °C.
+    pub wall_c: f64,
+    /// Heat rate per metre of length (hot → wall), W/m.
+    pub heat_rate_per_length_w_m: f64,
+    /// Heat flux on the reference area, W/m².
+    pub heat_flux_w_m2: f64,
+    /// Local overall coefficient on the reference area, W/(m²·K).
+    pub u_w_m2k: f64,
+    /// Hot film coefficient, W/(m²·K).
+    pub h_hot_w_m2k: f64,
+    /// Cold film coefficient, W/(m²·K).
+    pub h_cold_w_m2k: f64,
+    /// Hot Reynolds number (None without flow geometry).
+    pub re_hot: Option<f64>,
+    /// Cold Reynolds number.
+    pub re_cold: Option<f64>,
+    /// Hot Prandtl number.
+    pub pr_hot: f64,
+    /// Cold Prandtl number.
+    pub pr_cold: f64,
+    /// Hot viscosity, Pa·s.
+    pub mu_hot_pa_s: f64,
+    /// Cold viscosity, Pa·s.
+    pub mu_cold_pa_s: f64,
+    /// Hot specific heat, J/(kg·K).
+    pub cp_hot_j_kgk: f64,
+    /// Cold specific heat, J/(kg·K).
+    pub cp_cold_j_kgk: f64,
+    /// Hot density, kg/m³.
+    pub rho_hot_kg_m3: f64,
+    /// Cold density, kg/m³.
+    pub rho_cold_kg_m3: f64,
+    /// Hot conductivity, W/(m·K).
+    pub k_hot_w_mk: f64,
+    /// Cold conductivity, W/(m·K).
+    pub k_cold_w_mk: f64,
+}
+
+/// How the grid result compares with the lumped hand result.
+#[derive(Debug, Clone, Serialize)]
+pub struct Comparison {
+    /// (grid − lumped)/lumped duty, %.
+    pub duty_difference_percent: f64,
+    /// Grid − lumped hot outlet, K.
+    pub hot_outlet_difference_K: f64,
+    /// The same as a share of the grid's hot temperature change, %.
+    pub hot_outlet_difference_percent_of_change: f64,
+    /// Grid − lumped cold outlet, K.
+    pub cold_outlet_difference_K: f64,
+    /// The same as a share of the grid's cold temperature change, %.
+    pub cold_outlet_difference_percent_of_change: f64,
+    /// (grid UA − lumped UA)/lumped UA, %.
+    pub ua_difference_percent: f64,
+}
+
+/// Estimate of the discretisation error of a result.
+#[derive(Debug, Clone, Serialize)]
+pub struct GridError {
+    /// Cells of the coarser solve it was compared with.
+    pub coarse_cells: usize,
+    /// Order assumed for the extrapolation.
+    pub order: f64,
+    /// Richardson-extrapolated values.
+    pub extrapolated: KeyQuantities,
+    /// Estimated error of the reported result (result − extrapolated).
+    pub estimated_error: KeyQuantities,
+}
+
+/// One solve of a grid study.
+#[derive(Debug, Clone, Serialize)]
+pub struct StudyLevel {
+    /// Cells.
+    pub cells: usize,
+    /// Newton iterations.
+    pub iterations: usize,
+    /// Results at this grid.
+    #[serde(flatten)]
+    pub values: KeyQuantities,
+}
+
+/// Observed order of accuracy per quantity (None where the differences are at round-off,
+/// e.g. when the scheme is exact for the case).
+#[derive(Debug, Clone, Serialize)]
+pub struct ObservedOrder {
+    /// For the duty.
+    pub duty: Option<f64>,
+    /// For the hot outlet.
+    pub hot_outlet: Option<f64>,
+    /// For the cold outlet.
+    pub cold_outlet: Option<f64>,
+}
+
+/// Solves at N, 2N, 4N, … with observed order and Richardson extrapolation.
+#[derive(Debug, Clone, Serialize)]
+pub struct GridStudy {
+    /// The solves, coarse to fine.
+    pub levels: Vec<StudyLevel>,
+    /// The scheme's formal order.
+    pub formal_order: f64,
+    /// Order observed from the three finest levels.
+    pub observed_order: ObservedOrder,
+    /// Richardson extrapolation of the two finest levels at the formal order.
+    pub extrapolated: KeyQuantities,
+    /// Finest level − extrapolated.
+    pub finest_estimated_error: KeyQuantities,
+}
+
+/// Everything a steady rating produces.
+#[derive(Debug, Clone, Serialize)]
+pub struct SteadyReport {
+    /// Case name.
+    pub case: String,
+    /// Arrangement.
+    pub arrangement: &'static str,
+    /// Length, m.
+    pub length_m: f64,
+    /// Hot fluid description.
+    pub hot_fluid: String,
+    /// Cold fluid description.
+    pub cold_fluid: String,
+    /// Cells.
+    pub cells: usize,
+    /// Newton iterations.
+    pub iterations: usize,
+    /// Final Σ|residual| / maximum duty.
+    pub final_relative_residual: f64,
+    /// Duty (heat given up by the hot stream), W.
+    pub duty_W: f64,
+    /// Hot outlet, °C.
+    pub hot_outlet_C: f64,
+    /// Cold outlet, °C.
+    pub cold_outlet_C: f64,
+    /// Q / (C_min (T_h,in − T_c,in)), with each C the stream's mean capacity rate Q/ΔT.
+    pub effectiveness: f64,
+    /// Σ(local UA) / C_min.
+    pub ntu: f64,
+    /// C_min / C_max from the mean capacity rates.
+    pub capacity_ratio: f64,
+    /// Σ of local UA over the cells, W/K.
+    pub UA_W_K: f64,
+    /// LMTD of the grid's terminal temperatures, K.
+    pub lmtd_K: Option<f64>,
+    /// Duty / LMTD: the single UA a hand method would need to match the grid, W/K.
+    pub effective_UA_W_K: Option<f64>,
+    /// Heat given up by the hot stream (enthalpy change), W.
+    pub hot_heat_released_W: f64,
+    /// Heat taken by the cold stream (enthalpy change), W.
+    pub cold_heat_gained_W: f64,
+    /// Hot released − cold gained, W.
+    pub energy_imbalance_W: f64,
+    /// Thermodynamic maximum duty, W.
+    pub max_duty_W: f64,
+    /// The lumped hand result.
+    pub lumped: LumpedResult,
+    /// Grid versus lumped.
+    pub grid_vs_lumped: Comparison,
+    /// Estimated discretisation error (None for a single cell).
+    pub grid_error_estimate: Option<GridError>,
+    /// Grid study, if asked for.
+    pub grid_study: Option<GridStudy>,
+    /// Things the user should look at.
+    pub warnings: Vec<String>,
+    /// The standing caution.
+    pub caution: &'static str,
+    /// Cell-centre profiles (written as CSV, not into the summary).
+    #[serde(skip)]
+    pub profile: Vec<ProfileRow>,
+    /// Face positions, m (for plots).
+    #[serde(skip)]
+    pub faces_m: Vec<f64>,
+    /// Hot face temperatures, °C.
+    #[serde(skip)]
+    pub hot_faces_c: Vec<f64>,
+    /// Cold face temperatures, °C.
+    #[serde(skip)]
+    pub cold_faces_c: Vec<f64>,
+}
+
+impl SteadyReport {
+    /// The tracked quantities of this result.
+    pub fn key_quantities(&self) -> KeyQuantities {
+        KeyQuantities { duty_w: self.duty_W, hot_outlet_c: self.hot_outlet_C, cold_outlet_c: self.cold_outlet_C }
+    }
+}
