@@ -9,7 +9,7 @@
 
 mod constant;
 mod table;
-mod water;
+pub mod water;
 
 pub use constant::ConstantFluid;
 pub use table::UniformTable;

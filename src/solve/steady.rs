@@ -6,7 +6,8 @@
 //! the cell model (so any fluid or correlation plugged in is differentiated without extra
 //! code). A backtracking line search on the summed absolute residual keeps early steps
 //! safe. Convergence: Σ|residual| ≤ tolerance × the thermodynamic maximum duty, which also
-//! bounds the energy imbalance between the streams.
+//! bounds the energy imbalance between the streams (or at the round-off floor of the
+//! enthalpy differences, if that is larger).
 
 use super::BlockTridiagonal;
 use crate::lumped;
@@ -253,6 +254,16 @@ pub fn solve_steady(
     let dx = ex.length_m / n as f64;
     let lay = Layout { arrangement: ex.arrangement, n, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };
     let scale = ex.max_duty_w().abs().max(f64::MIN_POSITIVE);
+    // The residual cannot go below the round-off in the enthalpy differences, which grows
+    // with a stream's ṁ·|h|: a stream with 10⁶ times the other's capacity would otherwise
+    // never meet a tolerance relative to the duty. Converge at whichever is larger.
+    let roundoff = {
+        let size = |s: &crate::model::Stream| {
+            s.mass_flow_kg_s * (s.fluid.enthalpy(ex.hot.inlet_c).abs() + s.fluid.enthalpy(ex.cold.inlet_c).abs())
+        };
+        16.0 * f64::EPSILON * n as f64 * (size(&ex.hot) + size(&ex.cold))
+    };
+    let target = (settings.tolerance * scale).max(roundoff);
     let mut x = initial_guess(ex, &lay);
     let mut r = vec![Vector3::zeros(); n];
     let mut step = vec![Vector3::zeros(); n];
@@ -260,7 +271,7 @@ pub fn solve_steady(
     let mut jac = BlockTridiagonal::zeros(n);
     let mut norm = residuals(ex, &lay, dx, &x, &mut r);
     let mut iterations = 0;
-    while norm / scale > settings.tolerance {
+    while norm > target {
         if iterations >= settings.max_iterations || !norm.is_finite() {
             let worst = (0..n)
                 .max_by(|&a, &b| r[a].abs().sum().partial_cmp(&r[b].abs().sum()).unwrap_or(std::cmp::Ordering::Equal))
