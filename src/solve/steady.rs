@@ -334,7 +334,12 @@ fn unpack(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], iterations:
 fn check_ranges(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
     for (name, stream, faces) in [("hot", &ex.hot, &s.hot_faces_c), ("cold", &ex.cold, &s.cold_faces_c)] {
         let range = stream.fluid.range();
-        for (j, &t) in faces.iter().enumerate() {
+        // Walk in the stream's own flow direction, so the first face reported is where it
+        // first leaves the range.
+        let reversed = name == "cold" && ex.arrangement == Arrangement::Counterflow;
+        let order: Box<dyn Iterator<Item = (usize, &f64)>> =
+            if reversed { Box::new(faces.iter().enumerate().rev()) } else { Box::new(faces.iter().enumerate()) };
+        for (j, &t) in order {
             if !(t >= range.min_c && t <= range.max_c) {
                 return Err(SolveError::LeftRange {
                     stream: name,

@@ -1,0 +1,152 @@
+//! The command line as a user meets it: run, check, new, exit codes, output safety.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_hxgrid"))
+}
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("hxgrid-cli-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn run(args: &[&str], dir: &Path) -> Output {
+    bin().args(args).current_dir(dir).output().unwrap()
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+#[test]
+fn demo_run_writes_summary_profiles_and_plots() {
+    let dir = scratch("demo");
+    let case = root().join("cases/water-cooler.toml");
+    let o = run(&["run", case.to_str().unwrap()], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    let out = dir.join("output/water-cooler");
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
+    for key in ["duty_W", "hot_outlet_C", "cold_outlet_C", "effectiveness", "ntu", "capacity_ratio", "cells", "iterations", "energy_imbalance_W"] {
+        assert!(summary[key].is_number(), "summary.json lacks {key}");
+    }
+    for key in ["duty_W", "hot_outlet_C", "cold_outlet_C", "effectiveness"] {
+        assert!(summary["lumped"][key].is_number(), "summary.json lacks lumped.{key}");
+    }
+    let csv = std::fs::read_to_string(out.join("profiles.csv")).unwrap();
+    let mut lines = csv.lines();
+    assert!(lines.next().unwrap().starts_with("x_m,hot_C,cold_C,wall_C,"));
+    assert_eq!(lines.count(), 200);
+    for plot in ["temperatures.svg", "heat_flux.svg"] {
+        let svg = std::fs::read_to_string(out.join(plot)).unwrap();
+        assert!(svg.contains("<svg") && svg.contains("(m)"), "{plot}");
+    }
+    assert!(text(&o).contains("lumped"));
+    assert!(text(&o).contains("Caution"));
+}
+
+#[test]
+fn grid_study_option_prints_observed_order() {
+    let dir = scratch("study");
+    let case = root().join("cases/water-cooler.toml");
+    let o = run(&["run", case.to_str().unwrap(), "--grid-study", "3", "--out", "res"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    assert!(text(&o).contains("observed order"));
+    let summary = std::fs::read_to_string(dir.join("res/summary.json")).unwrap();
+    assert!(summary.contains("\"grid_study\""));
+}
+
+#[test]
+fn check_and_new() {
+    let dir = scratch("new");
+    let o = run(&["new", "mine.toml"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    let o = run(&["check", "mine.toml"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    assert!(text(&o).contains("valid"));
+    // Never overwrites.
+    std::fs::write(dir.join("mine.toml"), "keep me").unwrap();
+    let o = run(&["new", "mine.toml"], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    assert_eq!(std::fs::read_to_string(dir.join("mine.toml")).unwrap(), "keep me");
+    // The starter runs.
+    std::fs::remove_file(dir.join("mine.toml")).unwrap();
+    run(&["new", "mine.toml"], &dir);
+    let o = run(&["run", "mine.toml", "-q"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+}
+
+#[test]
+fn bad_input_exits_3_naming_the_key() {
+    let dir = scratch("bad");
+    let starter = hxgrid::case::STARTER;
+    let cases = [
+        (starter.replace("mass_flow_kg_s = 0.25", "mass_flow_kg_s = -0.25"), "hot.mass_flow_kg_s"),
+        (starter.replace("length_m = 5.0", "length_m = 0.0"), "length_m"),
+        (starter.replace("tube_inner_diameter_m = 0.0212", "tube_inner_diameter_m = 0.03"), "geometry.tube_inner_diameter_m"),
+        (starter.replace("inlet_temperature_C = 85.0", "inlet_temperature_C = 15.0"), "hot.inlet_temperature_C"),
+        (starter.replace("cells = 200", "cells = 0"), "solver.cells"),
+        (starter.replace("fouling_m2K_W = 0.0001", "fouling_m2K_W = -0.1"), "hot.fouling_m2K_W"),
+        (starter.replace("length_m = 5.0", "length_m = 5.0\nlenght_m = 5.0"), "lenght_m"),
+        (starter.replace("arrangement = \"counterflow\"", "arrangement = \"counter\""), "counterflow"),
+        (starter.replace("inlet_temperature_C = 20.0", "inlet_temperature_C = -5.0"), "cold.inlet_temperature_C"),
+        (starter.replace("length_m = 5.0", "length_m = \"five\""), "length_m"),
+    ];
+    for (i, (body, needle)) in cases.iter().enumerate() {
+        let f = dir.join(format!("bad{i}.toml"));
+        std::fs::write(&f, body).unwrap();
+        for cmd in ["check", "run"] {
+            let o = run(&[cmd, f.to_str().unwrap()], &dir);
+            assert_eq!(o.status.code(), Some(3), "case {i} {cmd}: {}", text(&o));
+            assert!(text(&o).contains(needle), "case {i}: message lacks {needle}: {}", text(&o));
+            assert!(!text(&o).contains("panicked"));
+        }
+    }
+    // Every problem reported at once.
+    let many = starter.replace("length_m = 5.0", "length_m = -1.0").replace("cells = 200", "cells = 0");
+    std::fs::write(dir.join("many.toml"), many).unwrap();
+    let t = text(&run(&["check", "many.toml"], &dir));
+    assert!(t.contains("length_m") && t.contains("solver.cells"), "{t}");
+    assert!(!dir.join("output").exists(), "nothing written for bad input");
+}
+
+#[test]
+fn solver_failure_exits_4_and_keeps_previous_results() {
+    let dir = scratch("fail");
+    let good = hxgrid::case::STARTER;
+    std::fs::write(dir.join("c.toml"), good).unwrap();
+    let o = run(&["run", "c.toml", "--out", "res", "-q"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    let before = std::fs::read_to_string(dir.join("res/summary.json")).unwrap();
+    // One Newton iteration cannot reach 1e-14.
+    let bad = good.replace("max_iterations = 50", "max_iterations = 1").replace("residual_tolerance = 1e-10", "residual_tolerance = 1e-14");
+    std::fs::write(dir.join("c.toml"), bad).unwrap();
+    let o = run(&["run", "c.toml", "--out", "res", "-q"], &dir);
+    assert_eq!(o.status.code(), Some(4), "{}", text(&o));
+    assert!(text(&o).contains("did not converge") && text(&o).contains("max_iterations"), "{}", text(&o));
+    assert_eq!(std::fs::read_to_string(dir.join("res/summary.json")).unwrap(), before);
+    // No stray staging folders.
+    let names: Vec<String> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().file_name().to_string_lossy().into_owned()).collect();
+    assert!(names.iter().all(|n| !n.contains("partial") && !n.contains("previous")), "{names:?}");
+}
+
+#[test]
+fn boiling_run_exits_4_with_saturation_message() {
+    let dir = scratch("boil");
+    let body = hxgrid::case::STARTER
+        .replace("inlet_temperature_C = 85.0", "inlet_temperature_C = 130.0")
+        .replace("mass_flow_kg_s = 0.35", "mass_flow_kg_s = 0.01")
+        .replace("pressure_bar_abs = 3.0\nfouling_m2K_W = 0.0002", "pressure_bar_abs = 1.0\nfouling_m2K_W = 0.0002");
+    std::fs::write(dir.join("b.toml"), body).unwrap();
+    let o = run(&["run", "b.toml", "-q"], &dir);
+    assert_eq!(o.status.code(), Some(4), "{}", text(&o));
+    let t = text(&o);
+    assert!(t.contains("cold stream") && t.contains("boiling") && t.contains("x = "), "{t}");
+}
