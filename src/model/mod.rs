@@ -151,18 +151,34 @@ pub struct CellDetail {
     pub cold_film: FilmResult,
     /// Bulk-to-bulk conductance per metre of length, W/(m·K).
     pub ua_per_length_w_mk: f64,
+    /// Hot bulk to wall node resistance of one metre, K·m/W.
+    pub r_hot_per_length: f64,
+    /// Wall node to cold bulk resistance of one metre, K·m/W.
+    pub r_cold_per_length: f64,
 }
 
+/// Derivatives of the three steady residuals (hot, cold, wall) with respect to the cell's
+/// five temperatures (hot in, hot out, cold in, cold out, wall), W/K.
+pub type CellJacobian = [[f64; 5]; 3];
+
+/// Step for the finite difference of a side resistance in bulk temperature, K.
+const RESISTANCE_STEP_K: f64 = 1e-4;
+
 impl Exchanger {
+    /// Resistance per metre from one stream's bulk to the wall node (convection, fouling,
+    /// half the wall), K·m/W, with that stream's properties and film at `bulk_c`.
+    fn side_resistance(&self, stream: &Stream, bulk_c: f64) -> (Props, FilmResult, f64) {
+        let (props, film) = stream.film_at(bulk_c);
+        let r = stream.surface_resistance_per_length(film.h) + 0.5 * self.wall.resistance_per_length();
+        (props, film, r)
+    }
+
     /// The cell model: heat rates of a cell of length `dx_m` at temperatures `t`.
     pub fn cell(&self, dx_m: f64, t: &CellTemps) -> CellDetail {
         let hot_bulk_c = 0.5 * (t.hot_in + t.hot_out);
         let cold_bulk_c = 0.5 * (t.cold_in + t.cold_out);
-        let (hot_props, hot_film) = self.hot.film_at(hot_bulk_c);
-        let (cold_props, cold_film) = self.cold.film_at(cold_bulk_c);
-        let half_wall = 0.5 * self.wall.resistance_per_length();
-        let r_hot = self.hot.surface_resistance_per_length(hot_film.h) + half_wall;
-        let r_cold = self.cold.surface_resistance_per_length(cold_film.h) + half_wall;
+        let (hot_props, hot_film, r_hot) = self.side_resistance(&self.hot, hot_bulk_c);
+        let (cold_props, cold_film, r_cold) = self.side_resistance(&self.cold, cold_bulk_c);
         let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
         let balance = CellBalance {
             hot_release_w: self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
@@ -179,7 +195,38 @@ impl Exchanger {
             hot_film,
             cold_film,
             ua_per_length_w_mk: 1.0 / (r_hot + r_cold),
+            r_hot_per_length: r_hot,
+            r_cold_per_length: r_cold,
         }
+    }
+
+    /// The cell model with the derivatives of its steady residuals, for Newton.
+    ///
+    /// Enthalpy terms differentiate to ṁ·cp (cp at the bulk temperature: an O(ΔT_cell)
+    /// approximation of the face values, which slows Newton by a negligible amount and
+    /// leaves the converged answer untouched, since the residual itself is exact). The heat
+    /// rates depend on the bulk temperatures through the film coefficients too; that part
+    /// is one forward difference of each side's resistance, so any plugged-in fluid or
+    /// correlation is differentiated without code of its own.
+    pub fn cell_with_jacobian(&self, dx_m: f64, t: &CellTemps) -> (CellDetail, CellJacobian) {
+        let d = self.cell(dx_m, t);
+        // ∂/∂T_bulk of ΔT·dx/r(T_bulk), ΔT = T_bulk − T_wall: dx/r · (1 − ΔT·r'/r).
+        let slope = |stream: &Stream, bulk: f64, r: f64| {
+            let (_, _, r_step) = self.side_resistance(stream, bulk + RESISTANCE_STEP_K);
+            let dr = (r_step - r) / RESISTANCE_STEP_K;
+            dx_m / r * (1.0 - (bulk - t.wall) * dr / r)
+        };
+        let g_hot = slope(&self.hot, d.hot_bulk_c, d.r_hot_per_length); // ∂q_hw/∂T_h,bulk
+        let g_cold = -slope(&self.cold, d.cold_bulk_c, d.r_cold_per_length); // ∂q_wc/∂T_c,bulk
+        let (k_hot, k_cold) = (dx_m / d.r_hot_per_length, dx_m / d.r_cold_per_length);
+        let mc_hot = self.hot.mass_flow_kg_s * d.hot_props.cp;
+        let mc_cold = self.cold.mass_flow_kg_s * d.cold_props.cp;
+        let jac = [
+            [mc_hot - 0.5 * g_hot, -mc_hot - 0.5 * g_hot, 0.0, 0.0, k_hot],
+            [0.0, 0.0, -mc_cold - 0.5 * g_cold, mc_cold - 0.5 * g_cold, -k_cold],
+            [0.5 * g_hot, 0.5 * g_hot, -0.5 * g_cold, -0.5 * g_cold, -k_hot - k_cold],
+        ];
+        (d, jac)
     }
 
     /// Bulk-to-bulk conductance per metre with both streams' properties taken at the given
@@ -199,5 +246,62 @@ impl Exchanger {
         let dh_hot = self.hot.mass_flow_kg_s * (self.hot.fluid.enthalpy(th) - self.hot.fluid.enthalpy(tc));
         let dh_cold = self.cold.mass_flow_kg_s * (self.cold.fluid.enthalpy(th) - self.cold.fluid.enthalpy(tc));
         dh_hot.min(dh_cold)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::fluid::{Water, WaterPhase};
+    use crate::transfer::{Gnielinski, NU_TUBE_LAMINAR_T};
+
+    /// The analytic-plus-side-difference Jacobian agrees with central differences of the
+    /// full cell model (regression guard for sign or factor slips).
+    #[test]
+    fn jacobian_matches_central_differences() {
+        let channel = |d: f64| Channel {
+            flow_area_m2: Some(std::f64::consts::PI * d * d / 4.0),
+            hydraulic_diameter_m: Some(d),
+            area_per_length_m: std::f64::consts::PI * d,
+            laminar_nusselt: NU_TUBE_LAMINAR_T,
+        };
+        let stream = |m: f64, t: f64| Stream {
+            fluid: Box::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
+            mass_flow_kg_s: m,
+            inlet_c: t,
+            fouling_m2k_w: 1e-4,
+            film: Box::new(Gnielinski),
+            channel: channel(0.02),
+        };
+        let ex = Exchanger {
+            arrangement: Arrangement::Counterflow,
+            length_m: 5.0,
+            hot: stream(0.08, 90.0),
+            cold: stream(0.3, 10.0),
+            wall: Wall::Tube { inner_diameter_m: 0.02, outer_diameter_m: 0.024, conductivity_w_mk: 16.0 },
+            reference_area_per_length_m: 0.024 * std::f64::consts::PI,
+        };
+        let t = CellTemps { hot_in: 70.0, hot_out: 68.0, cold_in: 20.0, cold_out: 21.0, wall: 40.0 };
+        let (_, jac) = ex.cell_with_jacobian(0.05, &t);
+        let h = 1e-4;
+        for k in 0..5 {
+            let shift = |d: f64| {
+                let mut p = t;
+                match k {
+                    0 => p.hot_in += d,
+                    1 => p.hot_out += d,
+                    2 => p.cold_in += d,
+                    3 => p.cold_out += d,
+                    _ => p.wall += d,
+                }
+                ex.cell(0.05, &p).balance.steady_residual()
+            };
+            let (up, down) = (shift(h), shift(-h));
+            for row in 0..3 {
+                let fd = (up[row] - down[row]) / (2.0 * h);
+                let scale = jac[row].iter().map(|v| v.abs()).fold(0.0, f64::max);
+                assert!((jac[row][k] - fd).abs() < 2e-3 * scale, "row {row} col {k}: {} vs {fd}", jac[row][k]);
+            }
+        }
     }
 }

@@ -70,22 +70,28 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     let root = SVGBackend::new(path, (SIZE.0, SIZE.1 + 160)).into_drawing_area();
     root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
     let panels = root.split_evenly((2, 1));
-    let data: [(&str, &str, RGBColor, Vec<(f64, f64)>); 2] = [
+    // The lumped method's single U and mean flux on the same reference area, for comparison.
+    let area = r.length_m * r.profile.first().map(|p| p.heat_rate_per_length_w_m / p.heat_flux_w_m2).unwrap_or(1.0);
+    let lumped_u = r.lumped.ua_w_k / area;
+    let lumped_flux = r.lumped.duty_w / area;
+    let data: [(&str, &str, RGBColor, Vec<(f64, f64)>, Option<f64>); 2] = [
         (
             "local heat flux",
             "heat flux q'' (W/m²)",
             HOT,
             r.profile.iter().map(|p| (p.x_m, p.heat_flux_w_m2)).collect(),
+            Some(lumped_flux).filter(|v| v.is_finite()),
         ),
         (
             "local overall coefficient",
             "U (W/m²·K)",
             COLD,
             r.profile.iter().map(|p| (p.x_m, p.u_w_m2k)).collect(),
+            Some(lumped_u).filter(|v| v.is_finite()),
         ),
     ];
-    for (panel, (title, ylabel, color, pts)) in panels.iter().zip(data) {
-        let (lo, hi) = span(pts.iter().map(|p| p.1));
+    for (panel, (title, ylabel, color, pts, lumped)) in panels.iter().zip(data) {
+        let (lo, hi) = span(pts.iter().map(|p| p.1).chain(lumped));
         let mut chart = ChartBuilder::on(panel)
             .caption(format!("{}: {title} (on the reference wall area)", r.case), ("sans-serif", 18))
             .margin(12)
@@ -100,7 +106,26 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
             .label_style(("sans-serif", 14))
             .draw()
             .map_err(|x| e(x.to_string()))?;
-        chart.draw_series(LineSeries::new(pts, color.stroke_width(2))).map_err(|x| e(x.to_string()))?;
+        chart
+            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label("grid (local)")
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+        if let Some(v) = lumped {
+            chart
+                .draw_series(DashedLineSeries::new(vec![(0.0, v), (r.length_m, v)], 8, 5, BLACK.stroke_width(1)))
+                .map_err(|x| e(x.to_string()))?
+                .label("lumped hand method (one value)")
+                .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(1)));
+        }
+        chart
+            .configure_series_labels()
+            .background_style(WHITE.mix(0.85))
+            .border_style(BLACK)
+            .position(SeriesLabelPosition::UpperRight)
+            .label_font(("sans-serif", 13))
+            .draw()
+            .map_err(|x| e(x.to_string()))?;
     }
     root.present().map_err(|x| e(x.to_string()))
 }

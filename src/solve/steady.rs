@@ -2,9 +2,8 @@
 //!
 //! Unknowns, cell by cell: the hot temperature at the cell's hot-downstream face, the cold
 //! temperature at its cold-downstream face, and the wall temperature. The Jacobian is
-//! block tridiagonal; each cell's 3×5 local derivatives come from forward differences of
-//! the cell model (so any fluid or correlation plugged in is differentiated without extra
-//! code). A backtracking line search on the summed absolute residual keeps early steps
+//! block tridiagonal; each cell's 3×5 local derivatives come from the cell model itself
+//! ([`Exchanger::cell_with_jacobian`]). A backtracking line search on the summed absolute residual keeps early steps
 //! safe. Convergence: Σ|residual| ≤ tolerance × the thermodynamic maximum duty, which also
 //! bounds the energy imbalance between the streams (or at the round-off floor of the
 //! enthalpy differences, if that is larger).
@@ -174,18 +173,6 @@ impl Layout {
     }
 }
 
-fn perturbed(t: &CellTemps, k: usize, d: f64) -> CellTemps {
-    let mut p = *t;
-    match k {
-        0 => p.hot_in += d,
-        1 => p.hot_out += d,
-        2 => p.cold_in += d,
-        3 => p.cold_out += d,
-        _ => p.wall += d,
-    }
-    p
-}
-
 /// Fill residuals; return Σ|r|.
 fn residuals(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) -> f64 {
     let mut sum = 0.0;
@@ -197,15 +184,13 @@ fn residuals(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], r: &mut 
     sum
 }
 
-fn jacobian(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], r: &[Vector3<f64>], jac: &mut BlockTridiagonal) {
+fn jacobian(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], jac: &mut BlockTridiagonal) {
     jac.clear();
-    const STEP_K: f64 = 1e-6;
     for i in 0..lay.n {
-        let t = lay.temps(x, i);
+        let (_, local) = ex.cell_with_jacobian(dx, &lay.temps(x, i));
         for (k, slot) in lay.slots(i).iter().enumerate() {
             let Slot::Var(off, comp) = *slot else { continue };
-            let res = ex.cell(dx, &perturbed(&t, k, STEP_K)).balance.steady_residual();
-            let col = (Vector3::new(res[0], res[1], res[2]) - r[i]) / STEP_K;
+            let col = Vector3::new(local[0][k], local[1][k], local[2][k]);
             let block = match off {
                 -1 => &mut jac.lower[i],
                 0 => &mut jac.diag[i],
@@ -286,7 +271,7 @@ pub fn solve_steady(
                     .into(),
             });
         }
-        jacobian(ex, &lay, dx, &x, &r, &mut jac);
+        jacobian(ex, &lay, dx, &x, &mut jac);
         step.copy_from_slice(&r);
         jac.solve(&mut step).map_err(|i| SolveError::Singular { position_m: (i as f64 + 0.5) * dx })?;
         // Backtracking: accept the first step length that reduces Σ|r|, else the smallest tried.
