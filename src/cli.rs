@@ -18,7 +18,10 @@ pub const EXIT_HELP: &str = "Exit codes: 0 success · 2 command-line usage error
         "  hxgrid run my.toml --out results/my-run       choose the results folder\n",
         "  hxgrid run my.toml --grid-study 4             also solve at N, 2N, 4N, 8N cells\n",
         "  hxgrid check my.toml                          validate only\n",
-        "  hxgrid new my.toml                            write a commented starter case\n\n",
+        "  hxgrid new my.toml                            write a commented starter case\n",
+        "  hxgrid fluids                                 list the fluids a case can name\n",
+        "  hxgrid props co2-10MPa --from 30 --to 60      print a fluid's properties\n",
+        "  hxgrid props --table my-oil.csv               check and print your own table\n\n",
         "Exit codes: 0 success · 2 command-line usage error · 3 invalid case file or input · ",
         "4 solver failure (no results written) · 5 results could not be written"
     )
@@ -56,4 +59,41 @@ pub enum Command {
         /// Path of the new case file.
         path: PathBuf,
     },
+    /// List the fluids a case can name.
+    Fluids,
+    /// Print a fluid's properties over a temperature range, or check a table file.
+    #[command(after_help = TABLE_HELP)]
+    Props {
+        /// Fluid name (see `hxgrid fluids`); omit with --table.
+        fluid: Option<String>,
+        /// A property table file to check and print instead of a named fluid.
+        #[arg(long, value_name = "FILE")]
+        table: Option<PathBuf>,
+        /// Absolute pressure, bar (default: the table's own, else 1.01325).
+        #[arg(long, value_name = "BAR")]
+        pressure_bar: Option<f64>,
+        /// First temperature, °C (default: the fluid's lowest valid).
+        #[arg(long, value_name = "C", allow_negative_numbers = true)]
+        from: Option<f64>,
+        /// Last temperature, °C (default: the fluid's highest valid).
+        #[arg(long, value_name = "C", allow_negative_numbers = true)]
+        to: Option<f64>,
+        /// Temperature step, K (default: 20 rows over the range).
+        #[arg(long, value_name = "K")]
+        step: Option<f64>,
+    },
 }
+
+/// The table-file format, shown by `hxgrid props --help`.
+pub const TABLE_HELP: &str = "Table file format (plain text, one row per temperature):
+  # hxgrid fluid table
+  # name: my-oil                        (optional metadata: '# key: value')
+  # source: supplier data sheet, 2024   (recorded in reports)
+  # pressure_Pa: 101325                 (optional: pressure the data hold at)
+  temperature_C,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s,conductivity_W_mK
+  20,870,1850,0.030,0.130
+  40,857,1930,0.012,0.128
+The header line is required exactly; temperatures strictly increase; all properties
+positive. Values between rows are interpolated shape-preservingly (monotone cubic);
+enthalpy is the integral of cp; outside the table hxgrid stops rather than extrapolate.
+Use in a case: fluid = \"table\" and table_file = \"my-oil.csv\" (relative to the case file).";

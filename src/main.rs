@@ -22,7 +22,81 @@ fn main() -> ExitCode {
         Command::Run { case, out, grid_study, quiet } => run(&case, out, grid_study.map(|g| g as usize), quiet),
         Command::Check { case } => check(&case),
         Command::New { path } => new_case(&path),
+        Command::Fluids => {
+            for (name, desc) in hxgrid::fluid::library::catalogue() {
+                println!("{name:<22} {desc}");
+            }
+            ExitCode::SUCCESS
+        }
+        Command::Props { fluid, table, pressure_bar, from, to, step } => props(fluid, table, pressure_bar, from, to, step),
     }
+}
+
+fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64>, from: Option<f64>, to: Option<f64>, step: Option<f64>) -> ExitCode {
+    use hxgrid::fluid::library::{self, FluidChoice};
+    let bad = |msg: String| {
+        eprintln!("error: {msg}");
+        ExitCode::from(EXIT_INPUT)
+    };
+    let choice = match (&fluid, &table) {
+        (Some(_), Some(_)) => return bad("give either a fluid name or --table FILE, not both".into()),
+        (None, None) => return bad("give a fluid name (see `hxgrid fluids`) or --table FILE".into()),
+        (None, Some(path)) => match library::load_table(path) {
+            Ok(t) => FluidChoice::Table(t),
+            Err(e) => return bad(format!("invalid fluid table: {e}")),
+        },
+        (Some(name), None) => match name.as_str() {
+            "water" => FluidChoice::Water,
+            other => match library::builtin_table(other) {
+                Some(t) => FluidChoice::Table(t),
+                None => return bad(format!("\"{other}\" is not a known fluid; `hxgrid fluids` lists them")),
+            },
+        },
+    };
+    let table_p = match &choice {
+        FluidChoice::Table(t) if !t.is_ideal_gas() => t.table_pressure_pa(),
+        _ => None,
+    };
+    let p_pa = match pressure_bar {
+        Some(p) if !(p.is_finite() && p > 0.0) => return bad(format!("--pressure-bar {p} must be a positive number of bar (absolute)")),
+        Some(p) => p * 1e5,
+        None => table_p.unwrap_or(101_325.0),
+    };
+    let t_probe = from.unwrap_or(20.0);
+    let f = match choice.build(p_pa, t_probe) {
+        Ok(f) => f,
+        Err(e) => return bad(e.to_string()),
+    };
+    let r = f.range();
+    let (lo, hi) = (from.unwrap_or(r.min_c), to.unwrap_or(r.max_c));
+    if !(lo.is_finite() && hi.is_finite() && hi >= lo) {
+        return bad(format!("--from {lo} and --to {hi}: need finite temperatures with --to ≥ --from"));
+    }
+    for (flag, t) in [("--from", lo), ("--to", hi)] {
+        if t < r.min_c - 1e-9 || t > r.max_c + 1e-9 {
+            return bad(format!("{flag} {t} °C is outside {}'s valid range {:.2} … {:.2} °C ({})", f.name(), r.min_c, r.max_c, r.reason));
+        }
+    }
+    let step = step.unwrap_or(((hi - lo) / 20.0).max(1e-6));
+    if !(step.is_finite() && step > 0.0) {
+        return bad(format!("--step {step} must be a positive number of kelvin"));
+    }
+    println!("{} at {:.5} bar (valid {:.2} … {:.2} °C)", f.name(), p_pa * 1e-5, r.min_c, r.max_c);
+    if let FluidChoice::Table(t) = &choice {
+        println!("source: {}", t.source());
+    }
+    println!("{:>10} {:>12} {:>12} {:>13} {:>11} {:>9} {:>14}", "T (°C)", "ρ (kg/m³)", "cp (J/kgK)", "μ (Pa·s)", "k (W/mK)", "Pr", "h − h(T₀) (kJ/kg)");
+    let h0 = f.enthalpy(lo);
+    let n = ((hi - lo) / step).floor() as usize;
+    for i in 0..=n.min(100_000) {
+        let t = (lo + step * i as f64).min(hi);
+        let p = f.props(t);
+        println!(
+            "{:>10.3} {:>12.4} {:>12.2} {:>13.5e} {:>11.5} {:>9.4} {:>14.4}",
+            t, p.density, p.cp, p.viscosity, p.conductivity, p.prandtl(), (f.enthalpy(t) - h0) * 1e-3
+        );
+    }
+    ExitCode::SUCCESS
 }
 
 fn load(path: &Path) -> Result<Case, ExitCode> {

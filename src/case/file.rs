@@ -55,13 +55,6 @@ pub struct GeometryFile {
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "snake_case")]
-pub enum FluidName {
-    Water,
-    Constant,
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
-#[serde(rename_all = "snake_case")]
 pub enum FilmName {
     Gnielinski,
     Fixed,
@@ -70,7 +63,10 @@ pub enum FilmName {
 #[derive(Debug, Clone, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct StreamFile {
-    pub fluid: FluidName,
+    /// "water", "constant", "table" or a built-in fluid name (`hxgrid fluids`).
+    pub fluid: String,
+    /// With fluid = "table": path of the table file, relative to the case file.
+    pub table_file: Option<String>,
     pub inlet_temperature_C: f64,
     pub mass_flow_kg_s: f64,
     pub pressure_bar_abs: Option<f64>,

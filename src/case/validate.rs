@@ -2,7 +2,8 @@
 //! its key path with the value given and what would be valid.
 
 use super::file::*;
-use crate::fluid::{ConstantFluid, Fluid, Props, Water};
+use crate::fluid::library::{self, FluidChoice};
+use crate::fluid::Props;
 use crate::model::{Arrangement, Exchanger, Stream};
 use crate::solve::SteadySettings;
 use crate::transfer::{Channel, FilmCorrelation, FixedFilm, Gnielinski, Wall, NU_TUBE_LAMINAR_T};
@@ -93,15 +94,6 @@ pub enum Geometry {
     },
 }
 
-/// Validated fluid choice.
-#[derive(Debug, Clone, PartialEq)]
-pub enum FluidSpec {
-    /// IAPWS-IF97 water, phase from the inlet state.
-    Water,
-    /// Constant properties.
-    Constant(Props),
-}
-
 /// Validated film model.
 #[derive(Debug, Clone, PartialEq)]
 pub enum FilmSpec {
@@ -112,10 +104,10 @@ pub enum FilmSpec {
 }
 
 /// Validated stream.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone)]
 pub struct StreamSpec {
     /// Fluid.
-    pub fluid: FluidSpec,
+    pub fluid: FluidChoice,
     /// Inlet, °C.
     pub inlet_c: f64,
     /// Mass flow, kg/s.
@@ -129,7 +121,7 @@ pub struct StreamSpec {
 }
 
 /// A valid case: everything needed to build and solve an exchanger.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone)]
 pub struct Case {
     /// Name (output folder).
     pub name: String,
@@ -153,15 +145,21 @@ pub struct Case {
 pub fn load(path: &Path) -> Result<Case, CaseError> {
     let text = std::fs::read_to_string(path).map_err(|source| CaseError::Io { path: path.display().to_string(), source })?;
     let stem = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "case".into());
-    parse_str(&text, &path.display().to_string(), &stem)
+    let base = path.parent().unwrap_or(Path::new("."));
+    parse_in(&text, &path.display().to_string(), &stem, base)
 }
 
 /// Parse and validate case text; `origin` names it in messages, `default_name` is used
-/// when the file has no `name`.
+/// when the file has no `name`. Table files are looked up relative to the current folder.
 pub fn parse_str(text: &str, origin: &str, default_name: &str) -> Result<Case, CaseError> {
+    parse_in(text, origin, default_name, Path::new("."))
+}
+
+/// As [`parse_str`], with table files relative to `base_dir`.
+pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -> Result<Case, CaseError> {
     let file: CaseFile =
         toml::from_str(text).map_err(|e| CaseError::Syntax { origin: origin.into(), message: e.to_string() })?;
-    validate(&file, default_name).map_err(|problems| CaseError::Invalid { origin: origin.into(), problems })
+    validate(&file, default_name, base_dir).map_err(|problems| CaseError::Invalid { origin: origin.into(), problems })
 }
 
 /// Standard atmosphere, Pa: the default stream pressure.
@@ -199,12 +197,12 @@ impl Checker {
     }
 }
 
-fn validate(f: &CaseFile, default_name: &str) -> Result<Case, Vec<Problem>> {
+fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, Vec<Problem>> {
     let mut c = Checker { problems: Vec::new(), warnings: Vec::new() };
     let length_m = c.positive("length_m", f.length_m, "m");
     let geometry = geometry(&mut c, f);
-    let hot = stream(&mut c, "hot", &f.hot);
-    let cold = stream(&mut c, "cold", &f.cold);
+    let hot = stream(&mut c, "hot", &f.hot, base_dir);
+    let cold = stream(&mut c, "cold", &f.cold, base_dir);
     if f.hot.inlet_temperature_C <= f.cold.inlet_temperature_C {
         c.fail(
             "hot.inlet_temperature_C",
@@ -315,17 +313,13 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
     }
 }
 
-fn stream(c: &mut Checker, side: &str, s: &StreamFile) -> StreamSpec {
+fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> StreamSpec {
     let key = |k: &str| format!("{side}.{k}");
     let inlet_c = s.inlet_temperature_C;
     if !inlet_c.is_finite() || inlet_c <= -273.15 {
         c.fail(&key("inlet_temperature_C"), format!("{inlet_c} °C is not valid: give a finite temperature above −273.15 °C"));
     }
     let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
-    let pressure_pa = match s.pressure_bar_abs {
-        Some(p) => c.positive(&key("pressure_bar_abs"), p, "bar") * 1e5,
-        None => ATMOSPHERE_PA,
-    };
     let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);
     if !(fouling_m2k_w.is_finite() && fouling_m2k_w >= 0.0) {
         c.fail(&key("fouling_m2K_W"), format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001"));
@@ -344,45 +338,118 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile) -> StreamSpec {
         }
         (FilmName::Gnielinski, None) => FilmSpec::Gnielinski,
     };
-    let fluid = match (s.fluid, &s.properties) {
-        (FluidName::Constant, Some(p)) => FluidSpec::Constant(Props {
-            density: c.positive(&key("properties.density_kg_m3"), p.density_kg_m3, "kg/m³"),
-            cp: c.positive(&key("properties.specific_heat_J_kgK"), p.specific_heat_J_kgK, "J/(kg·K)"),
-            viscosity: c.positive(&key("properties.viscosity_Pa_s"), p.viscosity_Pa_s, "Pa·s"),
-            conductivity: c.positive(&key("properties.conductivity_W_mK"), p.conductivity_W_mK, "W/(m·K)"),
-        }),
-        (FluidName::Constant, None) => {
-            c.fail(&key("properties"), format!("is missing: fluid = \"constant\" needs a [{side}.properties] table with density_kg_m3, specific_heat_J_kgK, viscosity_Pa_s, conductivity_W_mK"));
-            FluidSpec::Constant(Props { density: 1.0, cp: 1.0, viscosity: 1.0, conductivity: 1.0 })
-        }
-        (FluidName::Water, Some(_)) => {
-            c.fail(&key("properties"), "is only used with fluid = \"constant\": water properties come from IAPWS-IF97; remove the table".into());
-            FluidSpec::Water
-        }
-        (FluidName::Water, None) => {
-            check_water_inlet(c, side, pressure_pa, inlet_c);
-            FluidSpec::Water
-        }
+    let fluid = fluid_choice(c, side, s, base_dir);
+    // Pressure: given, else the table's own pressure, else one atmosphere.
+    let table_pressure = match &fluid {
+        Some(FluidChoice::Table(t)) if !t.is_ideal_gas() => t.table_pressure_pa(),
+        _ => None,
     };
+    let pressure_pa = match (s.pressure_bar_abs, table_pressure) {
+        (Some(p), tp) => {
+            let p = c.positive(&key("pressure_bar_abs"), p, "bar") * 1e5;
+            if let Some(tp) = tp {
+                if p.is_finite() && ((p - tp) / tp).abs() > 0.005 {
+                    c.fail(
+                        &key("pressure_bar_abs"),
+                        format!("{} bar does not match fluid \"{}\", tabulated at {} bar: set pressure_bar_abs = {} or omit it, or choose the table for your pressure", p * 1e-5, s.fluid, tp * 1e-5, tp * 1e-5),
+                    );
+                }
+            }
+            p
+        }
+        (None, Some(tp)) => tp,
+        (None, None) => ATMOSPHERE_PA,
+    };
+    let fluid = fluid.unwrap_or(FluidChoice::Constant(Props { density: 1.0, cp: 1.0, viscosity: 1.0, conductivity: 1.0 }));
+    if pressure_pa.is_finite() && pressure_pa > 0.0 && inlet_c.is_finite() && inlet_c > -273.15 {
+        check_inlet(c, side, &fluid, pressure_pa, inlet_c);
+    }
     StreamSpec { fluid, inlet_c, mass_flow_kg_s, pressure_pa, fouling_m2k_w, film }
 }
 
-fn check_water_inlet(c: &mut Checker, side: &str, pressure_pa: f64, inlet_c: f64) {
-    if !(pressure_pa.is_finite() && pressure_pa > 0.0 && inlet_c.is_finite()) {
-        return; // already reported
+/// Closest name by edit distance, for "did you mean".
+pub(crate) fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> {
+    fn distance(a: &str, b: &str) -> usize {
+        let (a, b): (Vec<char>, Vec<char>) = (a.chars().collect(), b.chars().collect());
+        let mut prev: Vec<usize> = (0..=b.len()).collect();
+        for i in 1..=a.len() {
+            let mut cur = vec![i; b.len() + 1];
+            for j in 1..=b.len() {
+                let sub = prev[j - 1] + usize::from(a[i - 1] != b[j - 1]);
+                cur[j] = sub.min(prev[j] + 1).min(cur[j - 1] + 1);
+            }
+            prev = cur;
+        }
+        prev[b.len()]
     }
-    let water = match Water::new(pressure_pa, Water::phase_at(pressure_pa, inlet_c)) {
-        Ok(w) => w,
+    options
+        .iter()
+        .map(|o| (distance(&word.to_lowercase(), &o.to_lowercase()), o))
+        .filter(|(d, o)| *d <= 3.max(o.len() / 3))
+        .min_by_key(|(d, _)| *d)
+        .map(|(_, o)| o.as_str())
+}
+
+fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> Option<FluidChoice> {
+    let key = |k: &str| format!("{side}.{k}");
+    if s.properties.is_some() && s.fluid != "constant" {
+        c.fail(&key("properties"), format!("is only used with fluid = \"constant\" (fluid is \"{}\"): remove the table", s.fluid));
+    }
+    if s.table_file.is_some() && s.fluid != "table" {
+        c.fail(&key("table_file"), format!("is only used with fluid = \"table\" (fluid is \"{}\"): remove it", s.fluid));
+    }
+    match s.fluid.as_str() {
+        "water" => Some(FluidChoice::Water),
+        "constant" => match &s.properties {
+            Some(p) => Some(FluidChoice::Constant(Props {
+                density: c.positive(&key("properties.density_kg_m3"), p.density_kg_m3, "kg/m³"),
+                cp: c.positive(&key("properties.specific_heat_J_kgK"), p.specific_heat_J_kgK, "J/(kg·K)"),
+                viscosity: c.positive(&key("properties.viscosity_Pa_s"), p.viscosity_Pa_s, "Pa·s"),
+                conductivity: c.positive(&key("properties.conductivity_W_mK"), p.conductivity_W_mK, "W/(m·K)"),
+            })),
+            None => {
+                c.fail(&key("properties"), format!("is missing: fluid = \"constant\" needs a [{side}.properties] table with density_kg_m3, specific_heat_J_kgK, viscosity_Pa_s, conductivity_W_mK"));
+                None
+            }
+        },
+        "table" => match &s.table_file {
+            Some(file) => match library::load_table(&base_dir.join(file)) {
+                Ok(t) => Some(FluidChoice::Table(t)),
+                Err(e) => {
+                    c.fail(&key("table_file"), format!("\"{file}\" is not a valid fluid table: {e}"));
+                    None
+                }
+            },
+            None => {
+                c.fail(&key("table_file"), "is missing: fluid = \"table\" needs table_file = \"path/to/table.csv\" (relative to the case file)".into());
+                None
+            }
+        },
+        name => match library::builtin_table(name) {
+            Some(t) => Some(FluidChoice::Table(t)),
+            None => {
+                let names = library::names();
+                let hint = closest(name, &names).map(|n| format!(" Did you mean \"{n}\"?")).unwrap_or_default();
+                c.fail(&key("fluid"), format!("\"{name}\" is not a known fluid.{hint} Valid: {} (list them with `hxgrid fluids`)", names.join(", ")));
+                None
+            }
+        },
+    }
+}
+
+fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f64, inlet_c: f64) {
+    let built = match fluid.build(pressure_pa, inlet_c) {
+        Ok(f) => f,
         Err(e) => {
             c.fail(&format!("{side}.pressure_bar_abs"), format!("{e}"));
             return;
         }
     };
-    let r = water.range();
+    let r = built.range();
     if !(inlet_c >= r.min_c && inlet_c <= r.max_c) {
         c.fail(
             &format!("{side}.inlet_temperature_C"),
-            format!("{inlet_c} °C is outside the valid range {:.2} … {:.2} °C for {}: {}", r.min_c, r.max_c, water.name(), r.reason),
+            format!("{inlet_c} °C is outside the valid range {:.2} … {:.2} °C of {}: {}", r.min_c, r.max_c, built.name(), r.reason),
         );
     }
 }
@@ -435,12 +502,7 @@ impl Case {
 }
 
 fn build_stream(s: &StreamSpec, channel: Channel) -> Stream {
-    let fluid: Box<dyn Fluid> = match &s.fluid {
-        FluidSpec::Constant(p) => Box::new(ConstantFluid::new(*p)),
-        FluidSpec::Water => Box::new(
-            Water::new(s.pressure_pa, Water::phase_at(s.pressure_pa, s.inlet_c)).expect("pressure checked in validation"),
-        ),
-    };
+    let fluid = s.fluid.build(s.pressure_pa, s.inlet_c).expect("fluid checked in validation");
     let film: Box<dyn FilmCorrelation> = match s.film {
         FilmSpec::Gnielinski => Box::new(Gnielinski),
         FilmSpec::Fixed(h) => Box::new(FixedFilm { h }),

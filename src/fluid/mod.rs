@@ -8,11 +8,14 @@
 //! [`Fluid::range_c`].
 
 mod constant;
+pub mod library;
 mod table;
+mod tabulated;
 pub mod water;
 
 pub use constant::ConstantFluid;
 pub use table::UniformTable;
+pub use tabulated::{monotone_slopes, TableError, TableFluid, HEADER as TABLE_HEADER};
 pub use water::{Water, WaterPhase};
 
 use std::fmt::Debug;
