@@ -54,51 +54,46 @@ fn median_time(reps: usize, mut f: impl FnMut()) -> f64 {
     times[reps / 2]
 }
 
-fn main() {
-    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler.toml");
+/// Solve `case_file` at 100, 1 000, 10 000 cells; print time, calls and property share.
+fn solve_table(case_file: &str) {
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases").join(case_file);
     let case = hxgrid::case::load(&path).expect("demo case");
-    let water = case.build();
-    let calls = Arc::new(Calls::default());
+    let plain = case.build();
+    let (hot_calls, cold_calls) = (Arc::new(Calls::default()), Arc::new(Calls::default()));
     let mut counted = case.build();
-    counted.hot.fluid = Box::new(Counting { inner: case.build().hot.fluid, calls: calls.clone() });
-    counted.cold.fluid = Box::new(Counting { inner: case.build().cold.fluid, calls: calls.clone() });
-
-    // Cost of one look-up on the tabulated water, measured in this run.
-    let fluid = &water.hot.fluid;
-    let temps: Vec<f64> = (0..10_000).map(|i| 10.0 + 80.0 * (i as f64 * 0.618_034).fract()).collect();
-    let per_call = |f: &dyn Fn(f64)| {
-        median_time(200, || {
-            for &t in &temps {
-                f(black_box(t));
-            }
-        }) / temps.len() as f64
+    counted.hot.fluid = Box::new(Counting { inner: case.build().hot.fluid, calls: hot_calls.clone() });
+    counted.cold.fluid = Box::new(Counting { inner: case.build().cold.fluid, calls: cold_calls.clone() });
+    // Per-call cost of each stream's own fluid, measured in this run over its range.
+    let cost = |f: &dyn Fluid| {
+        let r = f.range();
+        let temps: Vec<f64> = (0..10_000).map(|i| r.min_c + (r.max_c - r.min_c) * (i as f64 * 0.618_034).fract()).collect();
+        let t_p = median_time(50, || temps.iter().for_each(|&t| { black_box(f.props(black_box(t))); })) / 1e4;
+        let t_h = median_time(50, || temps.iter().for_each(|&t| { black_box(f.enthalpy(black_box(t))); })) / 1e4;
+        (t_p, t_h)
     };
-    let t_props = per_call(&|t| {
-        black_box(fluid.props(t));
-    });
-    let t_h = per_call(&|t| {
-        black_box(fluid.enthalpy(t));
-    });
-    let t_direct = median_time(5, || {
-        for &t in temps.iter().take(1000) {
-            black_box(hxgrid::fluid::water::direct(0.3, black_box(t)));
-        }
-    }) / 1000.0;
+    // Each stream's calls priced at its own fluid's cost.
+    let prices = [cost(&*plain.hot.fluid), cost(&*plain.cold.fluid)];
+    let snapshot = || [&hot_calls, &cold_calls].map(|c| (c.props.load(Relaxed), c.enthalpy.load(Relaxed)));
 
-    println!("steady solve, water-cooler demo (median of repeated runs, one core)");
+    println!("\nsteady solve, {case_file} (median of repeated runs, one core)");
     println!("{:>8} {:>12} {:>12} {:>12} {:>14} {:>14}", "cells", "time (ms)", "µs/cell", "iterations", "prop. calls", "props share");
     let mut per_cell = Vec::new();
     for n in [100usize, 1_000, 10_000] {
         let settings = SteadySettings { cells: n, ..case.solver.clone() };
         let reps = if n >= 10_000 { 7 } else { 31 };
-        let its = solve_steady(&water, &settings, &mut SilentObserver).unwrap().iterations;
+        let its = solve_steady(&plain, &settings, &mut SilentObserver).unwrap().iterations;
         let time = median_time(reps, || {
-            black_box(solve_steady(&water, &settings, &mut SilentObserver).unwrap());
+            black_box(solve_steady(&plain, &settings, &mut SilentObserver).unwrap());
         });
-        let before = (calls.props.load(Relaxed), calls.enthalpy.load(Relaxed));
+        let before = snapshot();
         solve_steady(&counted, &settings, &mut SilentObserver).unwrap();
-        let (np, nh) = (calls.props.load(Relaxed) - before.0, calls.enthalpy.load(Relaxed) - before.1);
-        let in_props = np as f64 * t_props + nh as f64 * t_h;
+        let after = snapshot();
+        let (mut calls, mut in_props) = (0, 0.0);
+        for k in 0..2 {
+            let (np, nh) = (after[k].0 - before[k].0, after[k].1 - before[k].1);
+            calls += np + nh;
+            in_props += np as f64 * prices[k].0 + nh as f64 * prices[k].1;
+        }
         per_cell.push(time / n as f64);
         println!(
             "{:>8} {:>12.3} {:>12.3} {:>12} {:>14} {:>13.0}%",
@@ -106,13 +101,35 @@ fn main() {
             time * 1e3,
             time / n as f64 * 1e6,
             its,
-            np + nh,
+            calls,
             100.0 * in_props / time
         );
     }
     println!("cost per cell, 10 000 vs 100 cells: {:.2}× (1.0 = linear in N)", per_cell[2] / per_cell[0]);
-    println!("\nproperty evaluation, water (IF97 tabulated per run at 0.25 K):");
-    println!("  props(T) from table:           {:>8.1} ns", t_props * 1e9);
-    println!("  enthalpy(T) from table:        {:>8.1} ns", t_h * 1e9);
-    println!("  IF97 direct (h, ρ, cp, μ, k):  {:>8.1} ns", t_direct * 1e9);
+}
+
+fn main() {
+    solve_table("water-cooler.toml");
+    solve_table("co2-gas-cooler.toml");
+
+    println!("\nproperty evaluation per call (props = ρ, cp, μ, k; enthalpy separately):");
+    println!("{:<40} {:>12} {:>14}", "source", "props (ns)", "enthalpy (ns)");
+    let mut sources: Vec<(String, Box<dyn Fluid>)> = vec![
+        ("water, IF97 tabulated per run (0.25 K)".into(), Box::new(hxgrid::fluid::Water::new(3e5, hxgrid::fluid::WaterPhase::Liquid).unwrap())),
+        ("constant properties".into(), Box::new(hxgrid::fluid::ConstantFluid::new(Props { density: 1.0, cp: 1.0, viscosity: 1.0, conductivity: 1.0 }))),
+    ];
+    for (name, _) in hxgrid::fluid::library::TABLES {
+        let t = hxgrid::fluid::library::builtin_table(name).unwrap();
+        sources.push((format!("table {name} ({} points)", t.temperatures().len()), Box::new(t)));
+    }
+    for (label, f) in &sources {
+        let r = f.range();
+        let temps: Vec<f64> = (0..10_000).map(|i| r.min_c + (r.max_c - r.min_c).min(1e3) * (i as f64 * 0.618_034).fract()).collect();
+        let t_p = median_time(50, || temps.iter().for_each(|&t| { black_box(f.props(black_box(t))); })) / 1e4;
+        let t_h = median_time(50, || temps.iter().for_each(|&t| { black_box(f.enthalpy(black_box(t))); })) / 1e4;
+        println!("{label:<40} {:>12.1} {:>14.1}", t_p * 1e9, t_h * 1e9);
+    }
+    let temps: Vec<f64> = (0..1000).map(|i| 10.0 + 120.0 * (i as f64 * 0.618_034).fract()).collect();
+    let t_direct = median_time(5, || temps.iter().for_each(|&t| { black_box(hxgrid::fluid::water::direct(0.3, black_box(t))); })) / 1e3;
+    println!("{:<40} {:>12.1} {:>14}", "water, IF97 evaluated directly", t_direct * 1e9, "(same call)");
 }

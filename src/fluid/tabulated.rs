@@ -55,7 +55,7 @@ impl Column {
         let m = monotone_slopes(t, &y);
         Self { y, m }
     }
-    #[inline]
+    #[cfg(test)]
     fn eval(&self, i: usize, u: f64, dt: f64) -> f64 {
         let (u2, u3) = (u * u, u * u * u);
         (2.0 * u3 - 3.0 * u2 + 1.0) * self.y[i]
@@ -106,19 +106,47 @@ pub fn monotone_slopes(t: &[f64], y: &[f64]) -> Vec<f64> {
     m
 }
 
+/// One interval of the table with each column's cubic in u = (T − t0)/Δt, coefficients
+/// lowest power first (precomputed so a look-up is a few multiply-adds).
+#[derive(Debug, Clone, Copy)]
+struct Segment {
+    t0: f64,
+    dt: f64,
+    inv_dt: f64,
+    h0: f64,
+    rho: [f64; 4],
+    cp: [f64; 4],
+    ln_mu: [f64; 4],
+    k: [f64; 4],
+}
+
+#[inline]
+fn horner(c: &[f64; 4], u: f64) -> f64 {
+    c[0] + u * (c[1] + u * (c[2] + u * c[3]))
+}
+
+impl Column {
+    /// Power-basis coefficients of segment i in u.
+    fn coefficients(&self, i: usize, dt: f64) -> [f64; 4] {
+        let (y0, y1, m0, m1) = (self.y[i], self.y[i + 1], self.m[i] * dt, self.m[i + 1] * dt);
+        [y0, m0, 3.0 * (y1 - y0) - 2.0 * m0 - m1, 2.0 * (y0 - y1) + m0 + m1]
+    }
+}
+
 /// A fluid defined by a property table at a fixed pressure.
 #[derive(Debug, Clone)]
 pub struct TableFluid {
+    segments: Vec<Segment>,
+    /// Segment index at the start of each of `guide.len()` equal temperature buckets.
+    guide: Vec<u32>,
+    guide_scale: f64,
     name: String,
     source: String,
     origin: String,
     pressure_pa: Option<f64>,
     molar_mass: Option<f64>,
     t: Vec<f64>,
-    rho: Column,
     cp: Column,
-    ln_mu: Column,
-    k: Column,
     /// Enthalpy at each node from the first, J/kg.
     h_nodes: Vec<f64>,
     /// Stream pressure for ideal-gas density, Pa.
@@ -206,16 +234,42 @@ impl TableFluid {
             h_nodes[i + 1] = h_nodes[i] + cp.integral(i, 1.0, t[i + 1] - t[i]);
         }
         let pressure_pa = num("pressure_Pa")?;
+        let rho = Column::new(&t, col(1));
+        let ln_mu = Column::new(&t, col(3).iter().map(|v| v.ln()).collect());
+        let k = Column::new(&t, col(4));
+        let segments: Vec<Segment> = (0..t.len() - 1)
+            .map(|i| {
+                let dt = t[i + 1] - t[i];
+                Segment {
+                    t0: t[i],
+                    dt,
+                    inv_dt: 1.0 / dt,
+                    h0: h_nodes[i],
+                    rho: rho.coefficients(i, dt),
+                    cp: cp.coefficients(i, dt),
+                    ln_mu: ln_mu.coefficients(i, dt),
+                    k: k.coefficients(i, dt),
+                }
+            })
+            .collect();
+        let buckets = 4 * t.len();
+        let guide_scale = buckets as f64 / (t[t.len() - 1] - t[0]);
+        let guide = (0..buckets)
+            .map(|b| {
+                let tb = t[0] + b as f64 / guide_scale;
+                (t.partition_point(|&x| x <= tb).saturating_sub(1)).min(t.len() - 2) as u32
+            })
+            .collect();
         Ok(Self {
+            segments,
+            guide,
+            guide_scale,
             name: meta.get("name").cloned().unwrap_or_else(|| origin.to_string()),
             source: meta.get("source").cloned().unwrap_or_else(|| "not stated in the table".into()),
             origin: origin.to_string(),
             pressure_pa,
             molar_mass: num("ideal_gas_molar_mass_kg_mol")?,
-            rho: Column::new(&t, col(1)),
             cp,
-            ln_mu: Column::new(&t, col(3).iter().map(|v| v.ln()).collect()),
-            k: Column::new(&t, col(4)),
             h_nodes,
             t,
             stream_pressure_pa: pressure_pa.unwrap_or(101_325.0),
@@ -248,17 +302,18 @@ impl TableFluid {
         &self.t
     }
 
-    /// Segment index and fraction for `t` clamped to the table.
+    /// Segment containing `t` (clamped to the table) and the fraction u within it.
     #[inline]
-    fn locate(&self, t: f64) -> (usize, f64, f64) {
+    fn locate(&self, t: f64) -> (&Segment, f64) {
         let n = self.t.len();
         let t = t.clamp(self.t[0], self.t[n - 1]);
-        let i = match self.t.partition_point(|&x| x <= t) {
-            0 => 0,
-            p => (p - 1).min(n - 2),
-        };
-        let dt = self.t[i + 1] - self.t[i];
-        (i, (t - self.t[i]) / dt, dt)
+        let bucket = (((t - self.t[0]) * self.guide_scale) as usize).min(self.guide.len() - 1);
+        let mut i = self.guide[bucket] as usize;
+        while i + 2 < n && self.t[i + 1] <= t {
+            i += 1;
+        }
+        let seg = &self.segments[i];
+        (seg, (t - seg.t0) * seg.inv_dt)
     }
 }
 
@@ -274,12 +329,12 @@ impl Fluid for TableFluid {
         }
     }
     fn props(&self, t_c: f64) -> Props {
-        let (i, u, dt) = self.locate(t_c);
+        let (seg, u) = self.locate(t_c);
         let density = match self.molar_mass {
-            Some(m) => self.stream_pressure_pa * m / (R_UNIVERSAL * (t_c.clamp(self.t[0], *self.t.last().unwrap()) + 273.15)),
-            None => self.rho.eval(i, u, dt),
+            Some(m) => self.stream_pressure_pa * m / (R_UNIVERSAL * (seg.t0 + u * seg.dt + 273.15)),
+            None => horner(&seg.rho, u),
         };
-        Props { density, cp: self.cp.eval(i, u, dt), viscosity: self.ln_mu.eval(i, u, dt).exp(), conductivity: self.k.eval(i, u, dt) }
+        Props { density, cp: horner(&seg.cp, u), viscosity: horner(&seg.ln_mu, u).exp(), conductivity: horner(&seg.k, u) }
     }
     fn enthalpy(&self, t_c: f64) -> f64 {
         let n = self.t.len();
@@ -289,8 +344,9 @@ impl Fluid for TableFluid {
         if t_c > self.t[n - 1] {
             return self.h_nodes[n - 1] + self.cp.y[n - 1] * (t_c - self.t[n - 1]);
         }
-        let (i, u, dt) = self.locate(t_c);
-        self.h_nodes[i] + self.cp.integral(i, u, dt)
+        let (seg, u) = self.locate(t_c);
+        let c = &seg.cp;
+        seg.h0 + seg.dt * u * (c[0] + u * (c[1] / 2.0 + u * (c[2] / 3.0 + u * c[3] / 4.0)))
     }
 }
 

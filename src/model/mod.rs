@@ -202,12 +202,12 @@ impl Exchanger {
 
     /// The cell model with the derivatives of its steady residuals, for Newton.
     ///
-    /// Enthalpy terms differentiate to ṁ·cp (cp at the bulk temperature: an O(ΔT_cell)
-    /// approximation of the face values, which slows Newton by a negligible amount and
-    /// leaves the converged answer untouched, since the residual itself is exact). The heat
-    /// rates depend on the bulk temperatures through the film coefficients too; that part
-    /// is one forward difference of each side's resistance, so any plugged-in fluid or
-    /// correlation is differentiated without code of its own.
+    /// Enthalpy terms differentiate exactly to ṁ·cp at each face. (Taking cp at the bulk
+    /// temperature instead was tried: it stalled Newton on supercritical CO₂, where cp
+    /// changes several percent across a cell and the in/out difference is what matters.)
+    /// The heat rates depend on the bulk temperatures through the film coefficients too;
+    /// that part is one forward difference of each side's resistance, so any plugged-in
+    /// fluid or correlation is differentiated without code of its own.
     pub fn cell_with_jacobian(&self, dx_m: f64, t: &CellTemps) -> (CellDetail, CellJacobian) {
         let d = self.cell(dx_m, t);
         // ∂/∂T_bulk of ΔT·dx/r(T_bulk), ΔT = T_bulk − T_wall: dx/r · (1 − ΔT·r'/r).
@@ -219,11 +219,12 @@ impl Exchanger {
         let g_hot = slope(&self.hot, d.hot_bulk_c, d.r_hot_per_length); // ∂q_hw/∂T_h,bulk
         let g_cold = -slope(&self.cold, d.cold_bulk_c, d.r_cold_per_length); // ∂q_wc/∂T_c,bulk
         let (k_hot, k_cold) = (dx_m / d.r_hot_per_length, dx_m / d.r_cold_per_length);
-        let mc_hot = self.hot.mass_flow_kg_s * d.hot_props.cp;
-        let mc_cold = self.cold.mass_flow_kg_s * d.cold_props.cp;
+        let mc = |s: &Stream, t: f64| s.mass_flow_kg_s * s.fluid.props(t).cp;
+        let (mc_hot_in, mc_hot_out) = (mc(&self.hot, t.hot_in), mc(&self.hot, t.hot_out));
+        let (mc_cold_in, mc_cold_out) = (mc(&self.cold, t.cold_in), mc(&self.cold, t.cold_out));
         let jac = [
-            [mc_hot - 0.5 * g_hot, -mc_hot - 0.5 * g_hot, 0.0, 0.0, k_hot],
-            [0.0, 0.0, -mc_cold - 0.5 * g_cold, mc_cold - 0.5 * g_cold, -k_cold],
+            [mc_hot_in - 0.5 * g_hot, -mc_hot_out - 0.5 * g_hot, 0.0, 0.0, k_hot],
+            [0.0, 0.0, -mc_cold_in - 0.5 * g_cold, mc_cold_out - 0.5 * g_cold, -k_cold],
             [0.5 * g_hot, 0.5 * g_hot, -0.5 * g_cold, -0.5 * g_cold, -k_hot - k_cold],
         ];
         (d, jac)

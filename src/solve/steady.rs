@@ -201,30 +201,39 @@ fn jacobian(ex: &Exchanger, lay: &Layout, dx: f64, x: &[Vector3<f64>], jac: &mut
     }
 }
 
-/// Initial guess: straight-line profiles between the inlets and the constant-property
-/// ε–NTU outlets (properties and films at the inlet temperatures).
+/// Initial guess: each stream's enthalpy varies linearly along the length between its
+/// inlet and an ε–NTU outlet estimate, and temperatures follow from T(h). Capacity rates
+/// are the mean ṁ·Δh/ΔT over the inlet-to-inlet span and the films are taken at the inlets,
+/// so a stream with a strong cp peak (supercritical CO₂) starts with the right shape: its
+/// temperature is flat where cp is large.
 fn initial_guess(ex: &Exchanger, lay: &Layout) -> Vec<Vector3<f64>> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
-    let c_hot = ex.hot.mass_flow_kg_s * ex.hot.fluid.props(th).cp;
-    let c_cold = ex.cold.mass_flow_kg_s * ex.cold.fluid.props(tc).cp;
+    let (hf, cf) = (&ex.hot.fluid, &ex.cold.fluid);
+    let span = |f: &dyn crate::fluid::Fluid, m: f64| m * (f.enthalpy(th) - f.enthalpy(tc)) / (th - tc);
+    let (c_hot, c_cold) = (span(&**hf, ex.hot.mass_flow_kg_s), span(&**cf, ex.cold.mass_flow_kg_s));
     let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
     let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
-    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max) * c_min * (th - tc);
-    let (th_out, tc_out) = (th - q / c_hot, tc + q / c_cold);
+    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max) * ex.max_duty_w();
+    let (h_hot_in, h_cold_in) = (hf.enthalpy(th), cf.enthalpy(tc));
+    let dh_hot = q / ex.hot.mass_flow_kg_s;
+    let dh_cold = q / ex.cold.mass_flow_kg_s;
     let n = lay.n as f64;
+    // Fraction s of each stream's own path already travelled → temperature.
+    let hot_at = |s: f64| hf.temperature_from_enthalpy(h_hot_in - dh_hot * s);
+    let cold_at = |s: f64| cf.temperature_from_enthalpy(h_cold_in + dh_cold * s);
+    let cold_path = |x: f64| match ex.arrangement {
+        Arrangement::Counterflow => 1.0 - x,
+        Arrangement::Parallel => x,
+    };
     (0..lay.n)
         .map(|i| {
-            let s_face = (i + 1) as f64 / n;
-            let hot = th + (th_out - th) * s_face;
-            let (cold, cold_centre) = match ex.arrangement {
-                Arrangement::Counterflow => {
-                    let s = i as f64 / n;
-                    (tc_out + (tc - tc_out) * s, tc_out + (tc - tc_out) * (i as f64 + 0.5) / n)
-                }
-                Arrangement::Parallel => (tc + (tc_out - tc) * s_face, tc + (tc_out - tc) * (i as f64 + 0.5) / n),
+            let face = match ex.arrangement {
+                Arrangement::Counterflow => i as f64 / n,
+                Arrangement::Parallel => (i + 1) as f64 / n,
             };
-            let hot_centre = th + (th_out - th) * (i as f64 + 0.5) / n;
-            Vector3::new(hot, cold, 0.5 * (hot_centre + cold_centre))
+            let centre = (i as f64 + 0.5) / n;
+            let wall = 0.5 * (hot_at(centre) + cold_at(cold_path(centre)));
+            Vector3::new(hot_at((i + 1) as f64 / n), cold_at(cold_path(face)), wall)
         })
         .collect()
 }
