@@ -150,3 +150,28 @@ fn boiling_run_exits_4_with_saturation_message() {
     let t = text(&o);
     assert!(t.contains("cold stream") && t.contains("boiling") && t.contains("x = "), "{t}");
 }
+
+#[test]
+fn fluids_and_props_commands() {
+    let dir = scratch("props");
+    let o = run(&["fluids"], &dir);
+    assert!(o.status.success());
+    for name in ["water", "air", "ethylene-glycol-30", "co2-10MPa", "thermal-oil"] {
+        assert!(text(&o).contains(name), "{name} missing");
+    }
+    let o = run(&["props", "co2-10MPa", "--from", "40", "--to", "50", "--step", "5"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    assert!(text(&o).contains("45.000") && text(&o).contains("CoolProp"), "{}", text(&o));
+    let o = run(&["props", "water", "--pressure-bar", "3", "--from", "20", "--to", "120", "--step", "50"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    // Out of range, unknown fluid, bad table: exit 3 with the reason.
+    let o = run(&["props", "water", "--pressure-bar", "1", "--from", "20", "--to", "120"], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(text(&o).contains("boiling"), "{}", text(&o));
+    let o = run(&["props", "glycol"], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    std::fs::write(dir.join("t.csv"), "temperature_C,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s,conductivity_W_mK\n20,870,1850,0.03,0.13\n10,857,1930,0.012,0.128\n").unwrap();
+    let o = run(&["props", "--table", "t.csv"], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(text(&o).contains("t.csv, line 3"), "{}", text(&o));
+}
