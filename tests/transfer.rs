@@ -4,7 +4,7 @@ mod common;
 use approx::assert_relative_eq;
 use hxgrid::fluid::{ConstantFluid, Props};
 use hxgrid::model::{Arrangement, Exchanger, Stream};
-use hxgrid::transfer::{darcy_petukhov, gnielinski_nusselt, Channel, FilmCorrelation, FixedFilm, Gnielinski, Wall};
+use hxgrid::transfer::{darcy_petukhov, gnielinski_nusselt, Channel, FilmCorrelation, FilmInput, FixedFilm, Gnielinski, Wall};
 
 /// Gnielinski (1976) with the Petukhov friction factor: check values computed from the
 /// formulas, shared/METHODS.md §2 [C].
@@ -49,10 +49,12 @@ fn annulus_laminar_table() {
 #[test]
 fn film_from_tube_flow() {
     let d = 0.02;
-    let ch = Channel { flow_area_m2: Some(std::f64::consts::PI * d * d / 4.0), hydraulic_diameter_m: Some(d), area_per_length_m: std::f64::consts::PI * d, laminar_nusselt: 3.66 };
+    let ch = Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, 3.66, 2.0);
     let props = Props { density: 998.0, cp: 4182.0, viscosity: 1.0e-3, conductivity: 0.6 };
     let m = 0.5;
-    let f = Gnielinski.film(&ch, m, &props);
+    let fluid = ConstantFluid::new(props);
+    let input = FilmInput { channel: &ch, mass_flow_kg_s: m, props: &props, bulk_c: 20.0, wall_c: 30.0, fluid: &fluid, heated: true };
+    let f = Gnielinski.film(&input);
     let re = 4.0 * m / (std::f64::consts::PI * d * props.viscosity);
     assert_relative_eq!(f.reynolds.unwrap(), re, max_relative = 1e-12);
     assert_relative_eq!(f.h, gnielinski_nusselt(re, props.prandtl()) * 0.6 / d, max_relative = 1e-12);
@@ -65,7 +67,7 @@ fn film_from_tube_flow() {
 #[test]
 fn series_resistance_chain() {
     let (ri, ro) = (0.010, 0.0125);
-    let wall = Wall::Tube { inner_diameter_m: 2.0 * ri, outer_diameter_m: 2.0 * ro, conductivity_w_mk: 16.0 };
+    let wall = Wall::Tube { inner_diameter_m: 2.0 * ri, outer_diameter_m: 2.0 * ro, conductivity_w_mk: 16.0, tube_length_per_length: 1.0 };
     assert_relative_eq!(wall.resistance_per_length(), 0.002220, max_relative = 2e-4);
     let props = Props { density: 1000.0, cp: 4000.0, viscosity: 1e-3, conductivity: 0.6 };
     let stream = |h: f64, a: f64, rf: f64, t: f64| Stream {
@@ -74,7 +76,7 @@ fn series_resistance_chain() {
         inlet_c: t,
         fouling_m2k_w: rf,
         film: Box::new(FixedFilm { h }),
-        channel: Channel { flow_area_m2: None, hydraulic_diameter_m: None, area_per_length_m: a, laminar_nusselt: 3.66 },
+        channel: Channel::bare(a),
     };
     let pi = std::f64::consts::PI;
     let ex = Exchanger {

@@ -12,7 +12,8 @@ pub struct CaseFile {
     pub name: Option<String>,
     pub description: Option<String>,
     pub arrangement: Arrangement,
-    pub length_m: f64,
+    /// Heated length; for a tube bank, derived from rows × longitudinal pitch (omit it).
+    pub length_m: Option<f64>,
     pub geometry: GeometryFile,
     pub hot: StreamFile,
     pub cold: StreamFile,
@@ -25,6 +26,21 @@ pub struct CaseFile {
 pub enum GeometryKind {
     DoublePipe,
     PlaneWall,
+    TubeBank,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum AnnulusDiameter {
+    Hydraulic,
+    Equivalent,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LayoutName {
+    Aligned,
+    Staggered,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
@@ -44,6 +60,16 @@ pub struct GeometryFile {
     pub tube_outer_diameter_m: Option<f64>,
     pub shell_inner_diameter_m: Option<f64>,
     pub tube_side: Option<SideName>,
+    /// Annulus: diameter in Nu = hD/k, "hydraulic" (D₂ − D₁, default) or "equivalent" ((D₂² − D₁²)/D₁).
+    pub annulus_heat_diameter: Option<AnnulusDiameter>,
+    // tube_bank (tube diameters and tube_side shared with double_pipe)
+    pub layout: Option<LayoutName>,
+    pub transverse_pitch_m: Option<f64>,
+    pub longitudinal_pitch_m: Option<f64>,
+    pub rows: Option<i64>,
+    pub tubes_per_row: Option<i64>,
+    pub tube_length_m: Option<f64>,
+    pub tube_circuits: Option<i64>,
     // plane_wall
     pub area_per_length_m2_m: Option<f64>,
     pub wall_thickness_m: Option<f64>,
@@ -57,7 +83,55 @@ pub struct GeometryFile {
 #[serde(rename_all = "snake_case")]
 pub enum FilmName {
     Gnielinski,
+    DittusBoelter,
+    SiederTate,
+    Zukauskas,
+    Compact,
     Fixed,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum LaminarName {
+    FullyDeveloped,
+    FullyDevelopedFlux,
+    Hausen,
+    SiederTate,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum WallCorrectionName {
+    None,
+    Viscosity,
+    GasTemperature,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FinName {
+    None,
+    Straight,
+    Annular,
+}
+
+/// A compact (possibly finned) surface described by j and f test data.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CompactFile {
+    /// CSV with header reynolds,colburn_j,fanning_f (relative to the case file).
+    pub data_file: String,
+    pub hydraulic_diameter_m: f64,
+    pub free_flow_area_m2: f64,
+    /// Total (fins + base) surface per metre of length on this side.
+    pub area_per_length_m2_m: f64,
+    pub fin: FinName,
+    pub fin_area_fraction: Option<f64>,
+    pub fin_length_m: Option<f64>,
+    pub fin_thickness_m: Option<f64>,
+    pub fin_conductivity_W_mK: Option<f64>,
+    pub fin_root_radius_m: Option<f64>,
+    pub fin_tip_radius_m: Option<f64>,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -73,6 +147,13 @@ pub struct StreamFile {
     pub fouling_m2K_W: Option<f64>,
     pub film: FilmName,
     pub film_coefficient_W_m2K: Option<f64>,
+    /// Laminar model for internal flow (default fully_developed).
+    pub laminar: Option<LaminarName>,
+    /// Wall-to-bulk property correction (default none).
+    pub wall_correction: Option<WallCorrectionName>,
+    /// Absolute wall roughness for friction, m (default 0, smooth).
+    pub roughness_m: Option<f64>,
+    pub compact: Option<CompactFile>,
     pub properties: Option<PropertiesFile>,
 }
 

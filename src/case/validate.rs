@@ -6,7 +6,10 @@ use crate::fluid::library::{self, FluidChoice};
 use crate::fluid::Props;
 use crate::model::{Arrangement, Exchanger, Stream};
 use crate::solve::SteadySettings;
-use crate::transfer::{Channel, FilmCorrelation, FixedFilm, Gnielinski, Wall, NU_TUBE_LAMINAR_T};
+use crate::transfer::{
+    Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall,
+    WallCorrection, Zukauskas, NU_TUBE_LAMINAR_T,
+};
 use std::f64::consts::PI;
 use std::path::Path;
 
@@ -78,6 +81,8 @@ pub enum Geometry {
         k: f64,
         /// Stream in the tube.
         tube_side: TubeSide,
+        /// Use the equivalent diameter (D₂² − D₁²)/D₁ for the annulus film coefficient.
+        annulus_equivalent_diameter: bool,
     },
     /// Generic plane wall with given area per length and per-stream channels.
     PlaneWall {
@@ -92,13 +97,55 @@ pub enum Geometry {
         /// Cold (flow area, hydraulic diameter).
         cold: (Option<f64>, Option<f64>),
     },
+    /// A bank of tubes crossed by the outside stream row after row, the tube-side stream
+    /// in serpentine circuits against it: many-pass cross-counterflow, modelled as
+    /// counterflow along the bank depth (x = row direction, length = rows × S_L).
+    TubeBank {
+        /// Tube inner diameter, m.
+        di: f64,
+        /// Wall conductivity, W/(m·K).
+        k: f64,
+        /// Stream in the tubes.
+        tube_side: TubeSide,
+        /// Bank geometry (outer diameter, pitches, layout, rows, frontal area).
+        bank: TubeBank,
+        /// Tubes in each row.
+        tubes_per_row: usize,
+        /// Length of each tube (face width), m.
+        tube_length: f64,
+        /// Parallel tube-side circuits.
+        circuits: usize,
+    },
+}
+
+impl Geometry {
+    /// Which stream the tubes carry, for geometries with tubes.
+    pub fn tube_side(&self) -> Option<TubeSide> {
+        match self {
+            Geometry::DoublePipe { tube_side, .. } | Geometry::TubeBank { tube_side, .. } => Some(*tube_side),
+            Geometry::PlaneWall { .. } => None,
+        }
+    }
 }
 
 /// Validated film model.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone)]
 pub enum FilmSpec {
-    /// Gnielinski with laminar fallback.
-    Gnielinski,
+    /// Internal flow (tube, annulus, plate channel).
+    Internal(InternalFlow),
+    /// Zukauskas, outside of a tube bank.
+    Zukauskas,
+    /// Compact surface from j/f data, with its own passage geometry.
+    Compact {
+        /// The surface data and fins.
+        surface: CompactSurface,
+        /// Hydraulic diameter, m.
+        hydraulic_diameter_m: f64,
+        /// Free-flow area, m².
+        free_flow_area_m2: f64,
+        /// Total surface per metre of length, m²/m.
+        area_per_length_m: f64,
+    },
     /// Fixed value, W/(m²·K).
     Fixed(f64),
 }
@@ -118,6 +165,8 @@ pub struct StreamSpec {
     pub fouling_m2k_w: f64,
     /// Film model.
     pub film: FilmSpec,
+    /// Absolute roughness, m.
+    pub roughness_m: f64,
 }
 
 /// A valid case: everything needed to build and solve an exchanger.
@@ -199,10 +248,25 @@ impl Checker {
 
 fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, Vec<Problem>> {
     let mut c = Checker { problems: Vec::new(), warnings: Vec::new() };
-    let length_m = c.positive("length_m", f.length_m, "m");
     let geometry = geometry(&mut c, f);
-    let hot = stream(&mut c, "hot", &f.hot, base_dir);
-    let cold = stream(&mut c, "cold", &f.cold, base_dir);
+    let length_m = match (&geometry, f.length_m) {
+        (Geometry::TubeBank { bank, .. }, given) => {
+            let depth = bank.rows as f64 * bank.longitudinal_pitch_m;
+            if let Some(l) = given {
+                if (l - depth).abs() > 1e-9 * depth.abs().max(1.0) {
+                    c.fail("length_m", format!("{l} m differs from the tube bank's depth rows × longitudinal_pitch_m = {depth} m: omit length_m for a tube bank"));
+                }
+            }
+            depth
+        }
+        (_, Some(l)) => c.positive("length_m", l, "m"),
+        (_, None) => {
+            c.fail("length_m", "is missing: give the heated length in m".into());
+            f64::NAN
+        }
+    };
+    let hot = stream(&mut c, "hot", &f.hot, base_dir, &geometry);
+    let cold = stream(&mut c, "cold", &f.cold, base_dir, &geometry);
     if f.hot.inlet_temperature_C <= f.cold.inlet_temperature_C {
         c.fail(
             "hot.inlet_temperature_C",
@@ -241,45 +305,92 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     })
 }
 
+/// Keys of `[geometry]` that belong to each kind (anything else given is an error).
+fn geometry_keys(g: &GeometryFile) -> Vec<(&'static str, bool)> {
+    vec![
+        ("tube_inner_diameter_m", g.tube_inner_diameter_m.is_some()),
+        ("tube_outer_diameter_m", g.tube_outer_diameter_m.is_some()),
+        ("shell_inner_diameter_m", g.shell_inner_diameter_m.is_some()),
+        ("tube_side", g.tube_side.is_some()),
+        ("annulus_heat_diameter", g.annulus_heat_diameter.is_some()),
+        ("layout", g.layout.is_some()),
+        ("transverse_pitch_m", g.transverse_pitch_m.is_some()),
+        ("longitudinal_pitch_m", g.longitudinal_pitch_m.is_some()),
+        ("rows", g.rows.is_some()),
+        ("tubes_per_row", g.tubes_per_row.is_some()),
+        ("tube_length_m", g.tube_length_m.is_some()),
+        ("tube_circuits", g.tube_circuits.is_some()),
+        ("area_per_length_m2_m", g.area_per_length_m2_m.is_some()),
+        ("wall_thickness_m", g.wall_thickness_m.is_some()),
+        ("hot_flow_area_m2", g.hot_flow_area_m2.is_some()),
+        ("hot_hydraulic_diameter_m", g.hot_hydraulic_diameter_m.is_some()),
+        ("cold_flow_area_m2", g.cold_flow_area_m2.is_some()),
+        ("cold_hydraulic_diameter_m", g.cold_hydraulic_diameter_m.is_some()),
+    ]
+}
+
 fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
     let g = &f.geometry;
     let k = c.positive("geometry.wall_conductivity_W_mK", g.wall_conductivity_W_mK, "W/(m·K)");
+    let (kind_name, allowed): (&str, &[&str]) = match g.kind {
+        GeometryKind::DoublePipe => ("double_pipe", &["tube_inner_diameter_m", "tube_outer_diameter_m", "shell_inner_diameter_m", "tube_side", "annulus_heat_diameter"]),
+        GeometryKind::PlaneWall => ("plane_wall", &["area_per_length_m2_m", "wall_thickness_m", "hot_flow_area_m2", "hot_hydraulic_diameter_m", "cold_flow_area_m2", "cold_hydraulic_diameter_m"]),
+        GeometryKind::TubeBank => ("tube_bank", &["tube_inner_diameter_m", "tube_outer_diameter_m", "tube_side", "layout", "transverse_pitch_m", "longitudinal_pitch_m", "rows", "tubes_per_row", "tube_length_m", "tube_circuits"]),
+    };
+    for (key, given) in geometry_keys(g) {
+        if given && !allowed.contains(&key) {
+            c.fail(&format!("geometry.{key}"), format!("does not apply to kind = \"{kind_name}\": remove it (keys for this kind: {})", allowed.join(", ")));
+        }
+    }
+    let tube_side = |c: &mut Checker| match g.tube_side {
+        Some(SideName::Hot) => TubeSide::Hot,
+        Some(SideName::Cold) => TubeSide::Cold,
+        None => {
+            c.fail("geometry.tube_side", "is missing: say which stream flows in the tubes, \"hot\" or \"cold\"".into());
+            TubeSide::Hot
+        }
+    };
+    let tubes = |c: &mut Checker, why: &str| {
+        let di = c.required("geometry.tube_inner_diameter_m", g.tube_inner_diameter_m, "m", why);
+        let d_o = c.required("geometry.tube_outer_diameter_m", g.tube_outer_diameter_m, "m", why);
+        c.looks_like_mm("geometry.tube_inner_diameter_m", di);
+        c.looks_like_mm("geometry.tube_outer_diameter_m", d_o);
+        if di >= d_o {
+            c.fail("geometry.tube_inner_diameter_m", format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"));
+        }
+        (di, d_o)
+    };
+    let count = |c: &mut Checker, key: &str, v: Option<i64>, why: &str| -> usize {
+        match v {
+            Some(n) if (1..=1_000_000).contains(&n) => n as usize,
+            Some(n) => {
+                c.fail(key, format!("{n} is not valid: use a whole number from 1 to 1 000 000"));
+                1
+            }
+            None => {
+                c.fail(key, format!("is missing: give a whole number ({why})"));
+                1
+            }
+        }
+    };
     match g.kind {
         GeometryKind::DoublePipe => {
             let why = "needed for a double pipe";
-            let di = c.required("geometry.tube_inner_diameter_m", g.tube_inner_diameter_m, "m", why);
-            let d_o = c.required("geometry.tube_outer_diameter_m", g.tube_outer_diameter_m, "m", why);
+            let (di, d_o) = tubes(c, why);
             let ds = c.required("geometry.shell_inner_diameter_m", g.shell_inner_diameter_m, "m", why);
-            for (key, v) in [("geometry.tube_inner_diameter_m", di), ("geometry.tube_outer_diameter_m", d_o), ("geometry.shell_inner_diameter_m", ds)] {
-                c.looks_like_mm(key, v);
-            }
-            if di >= d_o {
-                c.fail("geometry.tube_inner_diameter_m", format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"));
-            }
+            c.looks_like_mm("geometry.shell_inner_diameter_m", ds);
             if d_o >= ds {
                 c.fail("geometry.shell_inner_diameter_m", format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)"));
             }
-            let tube_side = match g.tube_side {
-                Some(SideName::Hot) => TubeSide::Hot,
-                Some(SideName::Cold) => TubeSide::Cold,
-                None => {
-                    c.fail("geometry.tube_side", "is missing: say which stream flows in the inner tube, \"hot\" or \"cold\"".into());
-                    TubeSide::Hot
-                }
-            };
-            for (key, v) in [("area_per_length_m2_m", g.area_per_length_m2_m), ("wall_thickness_m", g.wall_thickness_m), ("hot_flow_area_m2", g.hot_flow_area_m2), ("hot_hydraulic_diameter_m", g.hot_hydraulic_diameter_m), ("cold_flow_area_m2", g.cold_flow_area_m2), ("cold_hydraulic_diameter_m", g.cold_hydraulic_diameter_m)] {
-                if v.is_some() {
-                    c.fail(&format!("geometry.{key}"), "belongs to kind = \"plane_wall\", not \"double_pipe\": remove it".into());
-                }
-            }
-            Geometry::DoublePipe { di, d_o, ds, k, tube_side }
+            let annulus_equivalent_diameter = g.annulus_heat_diameter == Some(AnnulusDiameter::Equivalent);
+            Geometry::DoublePipe { di, d_o, ds, k, tube_side: tube_side(c), annulus_equivalent_diameter }
         }
         GeometryKind::PlaneWall => {
             let why = "needed for a plane wall";
             let area = c.required("geometry.area_per_length_m2_m", g.area_per_length_m2_m, "m²/m", why);
             let thickness = c.required("geometry.wall_thickness_m", g.wall_thickness_m, "m", why);
             let mut channel = |side: &str, film: FilmName, area: Option<f64>, dh: Option<f64>| {
-                let needs = film == FilmName::Gnielinski;
+                let needs = matches!(film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate);
                 let why = "needed when the film coefficient is computed from the flow";
                 let a_key = format!("geometry.{side}_flow_area_m2");
                 let d_key = format!("geometry.{side}_hydraulic_diameter_m");
@@ -300,20 +411,181 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             };
             let hot = channel("hot", f.hot.film, g.hot_flow_area_m2, g.hot_hydraulic_diameter_m);
             let cold = channel("cold", f.cold.film, g.cold_flow_area_m2, g.cold_hydraulic_diameter_m);
-            for (key, v) in [("tube_inner_diameter_m", g.tube_inner_diameter_m), ("tube_outer_diameter_m", g.tube_outer_diameter_m), ("shell_inner_diameter_m", g.shell_inner_diameter_m)] {
-                if v.is_some() {
-                    c.fail(&format!("geometry.{key}"), "belongs to kind = \"double_pipe\", not \"plane_wall\": remove it".into());
-                }
-            }
-            if g.tube_side.is_some() {
-                c.fail("geometry.tube_side", "belongs to kind = \"double_pipe\", not \"plane_wall\": remove it".into());
-            }
             Geometry::PlaneWall { area_per_length: area, thickness, k, hot, cold }
+        }
+        GeometryKind::TubeBank => {
+            let why = "needed for a tube bank";
+            let (di, d_o) = tubes(c, why);
+            let st = c.required("geometry.transverse_pitch_m", g.transverse_pitch_m, "m", why);
+            let sl = c.required("geometry.longitudinal_pitch_m", g.longitudinal_pitch_m, "m", why);
+            if st <= d_o {
+                c.fail("geometry.transverse_pitch_m", format!("{st} m must exceed the tube outer diameter {d_o} m (tubes cannot overlap)"));
+            }
+            let layout = match g.layout {
+                Some(LayoutName::Aligned) => Layout::Aligned,
+                Some(LayoutName::Staggered) => Layout::Staggered,
+                None => {
+                    c.fail("geometry.layout", "is missing: \"aligned\" or \"staggered\"".into());
+                    Layout::Aligned
+                }
+            };
+            if layout == Layout::Aligned && sl <= d_o {
+                c.fail("geometry.longitudinal_pitch_m", format!("{sl} m must exceed the tube outer diameter {d_o} m in an aligned bank"));
+            }
+            let rows = count(c, "geometry.rows", g.rows, why);
+            let tubes_per_row = count(c, "geometry.tubes_per_row", g.tubes_per_row, why);
+            let tube_length = c.required("geometry.tube_length_m", g.tube_length_m, "m", why);
+            let circuits = match g.tube_circuits {
+                None => tubes_per_row,
+                v => count(c, "geometry.tube_circuits", v, why),
+            };
+            let bank = TubeBank {
+                outer_diameter_m: d_o,
+                transverse_pitch_m: st,
+                longitudinal_pitch_m: sl,
+                layout,
+                rows,
+                frontal_area_m2: tubes_per_row as f64 * st * tube_length,
+            };
+            Geometry::TubeBank { di, k, tube_side: tube_side(c), bank, tubes_per_row, tube_length, circuits }
         }
     }
 }
 
-fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> StreamSpec {
+/// Read a compact-surface data file: `reynolds,colburn_j,fanning_f` rows, Re increasing.
+fn compact_data(path: &Path) -> Result<Vec<(f64, f64, f64)>, String> {
+    let text = std::fs::read_to_string(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+    let mut rows: Vec<(f64, f64, f64)> = Vec::new();
+    let mut header = false;
+    for (i, raw) in text.lines().enumerate() {
+        let line = raw.trim();
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        if !header {
+            if line.replace(' ', "") != "reynolds,colburn_j,fanning_f" {
+                return Err(format!("{}, line {}: the header must be 'reynolds,colburn_j,fanning_f'", path.display(), i + 1));
+            }
+            header = true;
+            continue;
+        }
+        let v: Vec<f64> = line.split(',').filter_map(|x| x.trim().parse::<f64>().ok()).collect();
+        if v.len() != 3 || v.iter().any(|x| !(x.is_finite() && *x > 0.0)) {
+            return Err(format!("{}, line {}: need three positive numbers (Re, j, f), got '{line}'", path.display(), i + 1));
+        }
+        if rows.last().is_some_and(|r| v[0] <= r.0) {
+            return Err(format!("{}, line {}: Reynolds numbers must increase", path.display(), i + 1));
+        }
+        rows.push((v[0], v[1], v[2]));
+    }
+    if rows.len() < 2 {
+        return Err(format!("{}: at least two data rows are needed", path.display()));
+    }
+    Ok(rows)
+}
+
+fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> FilmSpec {
+    let key = |k: &str| format!("{side}.{k}");
+    let is_tube_side = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
+    let internal = matches!(s.film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate);
+    if s.film_coefficient_W_m2K.is_some() && s.film != FilmName::Fixed {
+        c.fail(&key("film_coefficient_W_m2K"), "is only used with film = \"fixed\": remove it, or set film = \"fixed\"".into());
+    }
+    if s.compact.is_some() && s.film != FilmName::Compact {
+        c.fail(&key("compact"), "is only used with film = \"compact\": remove the table, or set film = \"compact\"".into());
+    }
+    if !internal && (s.laminar.is_some() || s.wall_correction.is_some()) {
+        c.fail(&key(if s.laminar.is_some() { "laminar" } else { "wall_correction" }), "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate) only: remove it".into());
+    }
+    if let (Geometry::TubeBank { .. }, Some(false)) = (geometry, is_tube_side) {
+        if internal {
+            c.fail(&key("film"), format!("\"{:?}\" is for flow inside channels; the outside of a tube bank needs film = \"zukauskas\", \"compact\" or \"fixed\"", s.film).to_lowercase());
+        }
+    }
+    match s.film {
+        FilmName::Fixed => FilmSpec::Fixed(match s.film_coefficient_W_m2K {
+            Some(h) => c.positive(&key("film_coefficient_W_m2K"), h, "W/(m²·K)"),
+            None => {
+                c.fail(&key("film_coefficient_W_m2K"), "is missing: film = \"fixed\" needs a coefficient in W/(m²·K)".into());
+                f64::NAN
+            }
+        }),
+        FilmName::Zukauskas => {
+            if !matches!((geometry, is_tube_side), (Geometry::TubeBank { .. }, Some(false))) {
+                c.fail(&key("film"), "\"zukauskas\" is for the outside of a tube bank: use geometry kind = \"tube_bank\" with this stream outside the tubes".into());
+            }
+            FilmSpec::Zukauskas
+        }
+        FilmName::Compact => match &s.compact {
+            None => {
+                c.fail(&key("compact"), format!("is missing: film = \"compact\" needs a [{side}.compact] table (data_file, hydraulic_diameter_m, free_flow_area_m2, area_per_length_m2_m, fin, …)"));
+                FilmSpec::Fixed(f64::NAN)
+            }
+            Some(cf) => {
+                let ck = |k: &str| format!("{side}.compact.{k}");
+                let data = match compact_data(&base_dir.join(&cf.data_file)) {
+                    Ok(d) => d,
+                    Err(e) => {
+                        c.fail(&ck("data_file"), e);
+                        vec![(1.0, 1.0, 1.0), (2.0, 1.0, 1.0)]
+                    }
+                };
+                let dh = c.positive(&ck("hydraulic_diameter_m"), cf.hydraulic_diameter_m, "m");
+                let a_ff = c.positive(&ck("free_flow_area_m2"), cf.free_flow_area_m2, "m²");
+                let area = c.positive(&ck("area_per_length_m2_m"), cf.area_per_length_m2_m, "m²/m");
+                let fin_needed = |c: &mut Checker, k: &str, v: Option<f64>| c.required(&ck(k), v, "m or W/(m·K)", "needed for the fin efficiency");
+                let (fin, fraction) = match cf.fin {
+                    FinName::None => (None, 0.0),
+                    kind => {
+                        let fraction = cf.fin_area_fraction.unwrap_or(f64::NAN);
+                        if !(fraction > 0.0 && fraction < 1.0) {
+                            c.fail(&ck("fin_area_fraction"), format!("{} is not valid: give the fin share of this side's area, between 0 and 1", cf.fin_area_fraction.map(|v| v.to_string()).unwrap_or_else(|| "missing".into())));
+                        }
+                        let t = fin_needed(c, "fin_thickness_m", cf.fin_thickness_m);
+                        let kf = fin_needed(c, "fin_conductivity_W_mK", cf.fin_conductivity_W_mK);
+                        let fin = if kind == FinName::Straight {
+                            Fin::Straight { length_m: fin_needed(c, "fin_length_m", cf.fin_length_m), thickness_m: t, conductivity_w_mk: kf }
+                        } else {
+                            let r1 = fin_needed(c, "fin_root_radius_m", cf.fin_root_radius_m);
+                            let r2 = fin_needed(c, "fin_tip_radius_m", cf.fin_tip_radius_m);
+                            if r2 <= r1 {
+                                c.fail(&ck("fin_tip_radius_m"), format!("{r2} m must exceed fin_root_radius_m = {r1} m"));
+                            }
+                            Fin::Annular { root_radius_m: r1, tip_radius_m: r2, thickness_m: t, conductivity_w_mk: kf }
+                        };
+                        (Some(fin), fraction)
+                    }
+                };
+                FilmSpec::Compact {
+                    surface: CompactSurface { data, fin, fin_area_fraction: fraction },
+                    hydraulic_diameter_m: dh,
+                    free_flow_area_m2: a_ff,
+                    area_per_length_m: area,
+                }
+            }
+        },
+        FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate => FilmSpec::Internal(InternalFlow {
+            turbulent: match s.film {
+                FilmName::DittusBoelter => Turbulent::DittusBoelter,
+                FilmName::SiederTate => Turbulent::SiederTate,
+                _ => Turbulent::Gnielinski,
+            },
+            laminar: match s.laminar {
+                None | Some(LaminarName::FullyDeveloped) => Laminar::FullyDevelopedT,
+                Some(LaminarName::FullyDevelopedFlux) => Laminar::FullyDevelopedH,
+                Some(LaminarName::Hausen) => Laminar::Hausen,
+                Some(LaminarName::SiederTate) => Laminar::SiederTate,
+            },
+            wall_correction: match s.wall_correction {
+                None | Some(WallCorrectionName::None) => WallCorrection::None,
+                Some(WallCorrectionName::Viscosity) => WallCorrection::Viscosity,
+                Some(WallCorrectionName::GasTemperature) => WallCorrection::GasTemperature,
+            },
+        }),
+    }
+}
+
+fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> StreamSpec {
     let key = |k: &str| format!("{side}.{k}");
     let inlet_c = s.inlet_temperature_C;
     if !inlet_c.is_finite() || inlet_c <= -273.15 {
@@ -326,18 +598,11 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> Strea
     } else if fouling_m2k_w > 0.01 {
         c.warnings.push(format!("{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units"));
     }
-    let film = match (s.film, s.film_coefficient_W_m2K) {
-        (FilmName::Fixed, Some(h)) => FilmSpec::Fixed(c.positive(&key("film_coefficient_W_m2K"), h, "W/(m²·K)")),
-        (FilmName::Fixed, None) => {
-            c.fail(&key("film_coefficient_W_m2K"), "is missing: film = \"fixed\" needs a coefficient in W/(m²·K)".into());
-            FilmSpec::Fixed(f64::NAN)
-        }
-        (FilmName::Gnielinski, Some(_)) => {
-            c.fail(&key("film_coefficient_W_m2K"), "is only used with film = \"fixed\": remove it, or set film = \"fixed\"".into());
-            FilmSpec::Gnielinski
-        }
-        (FilmName::Gnielinski, None) => FilmSpec::Gnielinski,
-    };
+    let film = film_spec(c, side, s, base_dir, geometry);
+    let roughness_m = s.roughness_m.unwrap_or(0.0);
+    if !(roughness_m.is_finite() && roughness_m >= 0.0) {
+        c.fail(&key("roughness_m"), format!("{roughness_m} m is not valid: use 0 (smooth) or a positive absolute roughness, e.g. 4.5e-5 for commercial steel"));
+    }
     let fluid = fluid_choice(c, side, s, base_dir);
     // Pressure: given, else the table's own pressure, else one atmosphere.
     let table_pressure = match &fluid {
@@ -364,7 +629,7 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> Strea
     if pressure_pa.is_finite() && pressure_pa > 0.0 && inlet_c.is_finite() && inlet_c > -273.15 {
         check_inlet(c, side, &fluid, pressure_pa, inlet_c);
     }
-    StreamSpec { fluid, inlet_c, mass_flow_kg_s, pressure_pa, fouling_m2k_w, film }
+    StreamSpec { fluid, inlet_c, mass_flow_kg_s, pressure_pa, fouling_m2k_w, film, roughness_m }
 }
 
 /// Closest name by edit distance, for "did you mean".
@@ -457,21 +722,15 @@ fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f6
 impl Case {
     /// Build the exchanger model (fluid tables are made here, once).
     pub fn build(&self) -> Exchanger {
-        let (wall, hot_channel, cold_channel, reference) = match self.geometry {
-            Geometry::DoublePipe { di, d_o, ds, k, tube_side } => {
-                let tube = Channel {
-                    flow_area_m2: Some(PI * di * di / 4.0),
-                    hydraulic_diameter_m: Some(di),
-                    area_per_length_m: PI * di,
-                    laminar_nusselt: NU_TUBE_LAMINAR_T,
-                };
-                let annulus = Channel {
-                    flow_area_m2: Some(PI * (ds * ds - d_o * d_o) / 4.0),
-                    hydraulic_diameter_m: Some(ds - d_o),
-                    area_per_length_m: PI * d_o,
-                    laminar_nusselt: Channel::annulus_laminar_nusselt(d_o / ds),
-                };
-                let wall = Wall::Tube { inner_diameter_m: di, outer_diameter_m: d_o, conductivity_w_mk: k };
+        let l = self.length_m;
+        let (wall, hot_channel, cold_channel, reference) = match &self.geometry {
+            &Geometry::DoublePipe { di, d_o, ds, k, tube_side, annulus_equivalent_diameter } => {
+                let tube = Channel::duct(PI * di * di / 4.0, di, PI * di, NU_TUBE_LAMINAR_T, l);
+                let mut annulus = Channel::duct(PI * (ds * ds - d_o * d_o) / 4.0, ds - d_o, PI * d_o, Channel::annulus_laminar_nusselt(d_o / ds), l);
+                if annulus_equivalent_diameter {
+                    annulus.heat_diameter_m = Some((ds * ds - d_o * d_o) / d_o);
+                }
+                let wall = Wall::Tube { inner_diameter_m: di, outer_diameter_m: d_o, conductivity_w_mk: k, tube_length_per_length: 1.0 };
                 match tube_side {
                     TubeSide::Hot => (wall, tube, annulus, PI * d_o),
                     TubeSide::Cold => (wall, annulus, tube, PI * d_o),
@@ -483,29 +742,57 @@ impl Case {
                 let channel = |(a, d): (Option<f64>, Option<f64>)| Channel {
                     flow_area_m2: a,
                     hydraulic_diameter_m: d,
-                    area_per_length_m: area_per_length,
-                    laminar_nusselt: Channel::annulus_laminar_nusselt(1.0),
+                    ..Channel::duct(1.0, 1.0, *area_per_length, Channel::annulus_laminar_nusselt(1.0), l)
                 };
-                let wall = Wall::Plane { thickness_m: thickness, conductivity_w_mk: k, area_per_length_m: area_per_length };
-                (wall, channel(hot), channel(cold), area_per_length)
+                let wall = Wall::Plane { thickness_m: *thickness, conductivity_w_mk: *k, area_per_length_m: *area_per_length };
+                (wall, channel(*hot), channel(*cold), *area_per_length)
+            }
+            Geometry::TubeBank { di, k, tube_side, bank, tubes_per_row, tube_length, circuits } => {
+                // Metres of tube per metre of bank depth.
+                let tubes_per_length = *tubes_per_row as f64 * tube_length / bank.longitudinal_pitch_m;
+                let d_o = bank.outer_diameter_m;
+                let circuit_length = bank.rows as f64 * tube_length;
+                let inside = Channel::duct(*circuits as f64 * PI * di * di / 4.0, *di, PI * di * tubes_per_length, NU_TUBE_LAMINAR_T, circuit_length);
+                let outside = Channel {
+                    flow_area_m2: Some(bank.frontal_area_m2),
+                    hydraulic_diameter_m: Some(d_o),
+                    ..Channel::duct(1.0, 1.0, PI * d_o * tubes_per_length, NU_TUBE_LAMINAR_T, l)
+                };
+                let wall = Wall::Tube { inner_diameter_m: *di, outer_diameter_m: d_o, conductivity_w_mk: *k, tube_length_per_length: tubes_per_length };
+                match tube_side {
+                    TubeSide::Hot => (wall, inside, outside, PI * d_o * tubes_per_length),
+                    TubeSide::Cold => (wall, outside, inside, PI * d_o * tubes_per_length),
+                }
             }
         };
         Exchanger {
             arrangement: self.arrangement,
-            length_m: self.length_m,
-            hot: build_stream(&self.hot, hot_channel),
-            cold: build_stream(&self.cold, cold_channel),
+            length_m: l,
+            hot: build_stream(&self.hot, hot_channel, &self.geometry),
+            cold: build_stream(&self.cold, cold_channel, &self.geometry),
             wall,
             reference_area_per_length_m: reference,
         }
     }
 }
 
-fn build_stream(s: &StreamSpec, channel: Channel) -> Stream {
+fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> Stream {
     let fluid = s.fluid.build(s.pressure_pa, s.inlet_c).expect("fluid checked in validation");
-    let film: Box<dyn FilmCorrelation> = match s.film {
-        FilmSpec::Gnielinski => Box::new(Gnielinski),
-        FilmSpec::Fixed(h) => Box::new(FixedFilm { h }),
+    channel.roughness_m = s.roughness_m;
+    let film: Box<dyn FilmCorrelation> = match &s.film {
+        FilmSpec::Internal(model) => Box::new(model.clone()),
+        FilmSpec::Fixed(h) => Box::new(FixedFilm { h: *h }),
+        FilmSpec::Zukauskas => match geometry {
+            Geometry::TubeBank { bank, .. } => Box::new(Zukauskas { bank: bank.clone() }),
+            _ => unreachable!("validation allows zukauskas only on a tube bank"),
+        },
+        FilmSpec::Compact { surface, hydraulic_diameter_m, free_flow_area_m2, area_per_length_m } => {
+            channel.flow_area_m2 = Some(*free_flow_area_m2);
+            channel.hydraulic_diameter_m = Some(*hydraulic_diameter_m);
+            channel.heat_diameter_m = None;
+            channel.area_per_length_m = *area_per_length_m;
+            Box::new(surface.clone())
+        }
     };
     Stream { fluid, mass_flow_kg_s: s.mass_flow_kg_s, inlet_c: s.inlet_c, fouling_m2k_w: s.fouling_m2k_w, film, channel }
 }

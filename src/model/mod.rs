@@ -20,7 +20,7 @@
 //! the hot stream equals the sum of the cells' heat rates exactly, whatever the properties.
 
 use crate::fluid::{Fluid, Props};
-use crate::transfer::{Channel, FilmCorrelation, FilmResult, Wall};
+use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 
 /// Flow arrangement of the two streams.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -60,18 +60,28 @@ pub struct Stream {
 }
 
 impl Stream {
-    /// Film coefficient and properties at bulk temperature `t_c`.
-    pub fn film_at(&self, t_c: f64) -> (Props, FilmResult) {
-        let props = self.fluid.props(t_c);
-        let film = self.film.film(&self.channel, self.mass_flow_kg_s, &props);
-        (props, film)
+    /// Properties at bulk temperature `bulk_c` and the film with the wall at `wall_c`;
+    /// `heated` is true for the stream taking heat (the cold one).
+    pub fn film_at(&self, bulk_c: f64, wall_c: f64, heated: bool) -> (Props, FilmResult) {
+        let props = self.fluid.props(bulk_c);
+        let input = FilmInput {
+            channel: &self.channel,
+            mass_flow_kg_s: self.mass_flow_kg_s,
+            props: &props,
+            bulk_c,
+            wall_c,
+            fluid: &*self.fluid,
+            heated,
+        };
+        (props, self.film.film(&input))
     }
 
     /// Resistance per metre between this stream's bulk and the wall's conducting metal
-    /// surface, K·m/W: convection plus fouling, both on this side's area.
-    pub fn surface_resistance_per_length(&self, h: f64) -> f64 {
-        let a = self.channel.area_per_length_m;
-        1.0 / (h * a) + self.fouling_m2k_w / a
+    /// surface, K·m/W: convection plus fouling on this side's area, both divided by the
+    /// overall surface efficiency η_o of a finned surface (Incropera Eq. 11.5).
+    pub fn surface_resistance_per_length(&self, film: &FilmResult) -> f64 {
+        let a = self.channel.area_per_length_m * film.surface_efficiency;
+        1.0 / (film.h * a) + self.fouling_m2k_w / a
     }
 }
 
@@ -166,10 +176,11 @@ const RESISTANCE_STEP_K: f64 = 1e-4;
 
 impl Exchanger {
     /// Resistance per metre from one stream's bulk to the wall node (convection, fouling,
-    /// half the wall), K·m/W, with that stream's properties and film at `bulk_c`.
-    fn side_resistance(&self, stream: &Stream, bulk_c: f64) -> (Props, FilmResult, f64) {
-        let (props, film) = stream.film_at(bulk_c);
-        let r = stream.surface_resistance_per_length(film.h) + 0.5 * self.wall.resistance_per_length();
+    /// half the wall), K·m/W, with that stream's properties at `bulk_c` and the wall at `wall_c`.
+    fn side_resistance(&self, stream: &Stream, bulk_c: f64, wall_c: f64) -> (Props, FilmResult, f64) {
+        let heated = std::ptr::eq(stream, &self.cold);
+        let (props, film) = stream.film_at(bulk_c, wall_c, heated);
+        let r = stream.surface_resistance_per_length(&film) + 0.5 * self.wall.resistance_per_length();
         (props, film, r)
     }
 
@@ -177,8 +188,8 @@ impl Exchanger {
     pub fn cell(&self, dx_m: f64, t: &CellTemps) -> CellDetail {
         let hot_bulk_c = 0.5 * (t.hot_in + t.hot_out);
         let cold_bulk_c = 0.5 * (t.cold_in + t.cold_out);
-        let (hot_props, hot_film, r_hot) = self.side_resistance(&self.hot, hot_bulk_c);
-        let (cold_props, cold_film, r_cold) = self.side_resistance(&self.cold, cold_bulk_c);
+        let (hot_props, hot_film, r_hot) = self.side_resistance(&self.hot, hot_bulk_c, t.wall);
+        let (cold_props, cold_film, r_cold) = self.side_resistance(&self.cold, cold_bulk_c, t.wall);
         let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
         let balance = CellBalance {
             hot_release_w: self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
@@ -210,34 +221,48 @@ impl Exchanger {
     /// fluid or correlation is differentiated without code of its own.
     pub fn cell_with_jacobian(&self, dx_m: f64, t: &CellTemps) -> (CellDetail, CellJacobian) {
         let d = self.cell(dx_m, t);
-        // ∂/∂T_bulk of ΔT·dx/r(T_bulk), ΔT = T_bulk − T_wall: dx/r · (1 − ΔT·r'/r).
-        let slope = |stream: &Stream, bulk: f64, r: f64| {
-            let (_, _, r_step) = self.side_resistance(stream, bulk + RESISTANCE_STEP_K);
-            let dr = (r_step - r) / RESISTANCE_STEP_K;
-            dx_m / r * (1.0 - (bulk - t.wall) * dr / r)
+        // q = ΔT·dx/r(T_bulk, T_wall), ΔT = T_bulk − T_wall:
+        //   ∂q/∂T_bulk = dx/r·(1 − ΔT·∂r/∂T_bulk / r),  ∂q/∂T_wall = −dx/r·(1 + ΔT·∂r/∂T_wall / r).
+        let slopes = |stream: &Stream, bulk: f64, r: f64| {
+            let (_, _, r_bulk) = self.side_resistance(stream, bulk + RESISTANCE_STEP_K, t.wall);
+            let dr_bulk = (r_bulk - r) / RESISTANCE_STEP_K;
+            let dr_wall = if stream.film.uses_wall_temperature() {
+                let (_, _, r_wall) = self.side_resistance(stream, bulk, t.wall + RESISTANCE_STEP_K);
+                (r_wall - r) / RESISTANCE_STEP_K
+            } else {
+                0.0
+            };
+            let dt = bulk - t.wall;
+            (dx_m / r * (1.0 - dt * dr_bulk / r), -dx_m / r * (1.0 + dt * dr_wall / r))
         };
-        let g_hot = slope(&self.hot, d.hot_bulk_c, d.r_hot_per_length); // ∂q_hw/∂T_h,bulk
-        let g_cold = -slope(&self.cold, d.cold_bulk_c, d.r_cold_per_length); // ∂q_wc/∂T_c,bulk
-        let (k_hot, k_cold) = (dx_m / d.r_hot_per_length, dx_m / d.r_cold_per_length);
+        let (g_hot, w_hot) = slopes(&self.hot, d.hot_bulk_c, d.r_hot_per_length); // ∂q_hw/∂T_h,bulk, ∂q_hw/∂T_w
+        let (g_cold_q, w_cold_q) = slopes(&self.cold, d.cold_bulk_c, d.r_cold_per_length); // of (T_c − T_w)dx/r = −q_wc
+        let (g_cold, w_cold) = (-g_cold_q, -w_cold_q); // ∂q_wc/∂T_c,bulk, ∂q_wc/∂T_w
         let mc = |s: &Stream, t: f64| s.mass_flow_kg_s * s.fluid.props(t).cp;
         let (mc_hot_in, mc_hot_out) = (mc(&self.hot, t.hot_in), mc(&self.hot, t.hot_out));
         let (mc_cold_in, mc_cold_out) = (mc(&self.cold, t.cold_in), mc(&self.cold, t.cold_out));
         let jac = [
-            [mc_hot_in - 0.5 * g_hot, -mc_hot_out - 0.5 * g_hot, 0.0, 0.0, k_hot],
-            [0.0, 0.0, -mc_cold_in - 0.5 * g_cold, mc_cold_out - 0.5 * g_cold, -k_cold],
-            [0.5 * g_hot, 0.5 * g_hot, -0.5 * g_cold, -0.5 * g_cold, -k_hot - k_cold],
+            [mc_hot_in - 0.5 * g_hot, -mc_hot_out - 0.5 * g_hot, 0.0, 0.0, -w_hot],
+            [0.0, 0.0, -mc_cold_in - 0.5 * g_cold, mc_cold_out - 0.5 * g_cold, -w_cold],
+            [0.5 * g_hot, 0.5 * g_hot, -0.5 * g_cold, -0.5 * g_cold, w_hot - w_cold],
         ];
         (d, jac)
     }
 
     /// Bulk-to-bulk conductance per metre with both streams' properties taken at the given
     /// temperatures (the lumped hand method's U·a), W/(m·K).
+    /// The wall temperature is placed by the resistance split (two passes, starting from
+    /// the mean), which matters only for correlations with a wall-property correction.
     pub fn ua_per_length_at(&self, hot_c: f64, cold_c: f64) -> f64 {
-        let (_, hf) = self.hot.film_at(hot_c);
-        let (_, cf) = self.cold.film_at(cold_c);
-        1.0 / (self.hot.surface_resistance_per_length(hf.h)
-            + self.wall.resistance_per_length()
-            + self.cold.surface_resistance_per_length(cf.h))
+        let mut wall = 0.5 * (hot_c + cold_c);
+        let mut ua = 0.0;
+        for _ in 0..2 {
+            let (_, _, r_hot) = self.side_resistance(&self.hot, hot_c, wall);
+            let (_, _, r_cold) = self.side_resistance(&self.cold, cold_c, wall);
+            ua = 1.0 / (r_hot + r_cold);
+            wall = hot_c - (hot_c - cold_c) * r_hot / (r_hot + r_cold);
+        }
+        ua
     }
 
     /// Largest duty thermodynamics allows, C_min (T_h,in − T_c,in), with each stream's
@@ -260,12 +285,7 @@ mod tests {
     /// full cell model (regression guard for sign or factor slips).
     #[test]
     fn jacobian_matches_central_differences() {
-        let channel = |d: f64| Channel {
-            flow_area_m2: Some(std::f64::consts::PI * d * d / 4.0),
-            hydraulic_diameter_m: Some(d),
-            area_per_length_m: std::f64::consts::PI * d,
-            laminar_nusselt: NU_TUBE_LAMINAR_T,
-        };
+        let channel = |d: f64| Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, NU_TUBE_LAMINAR_T, 5.0);
         let stream = |m: f64, t: f64| Stream {
             fluid: Box::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
             mass_flow_kg_s: m,
@@ -279,7 +299,7 @@ mod tests {
             length_m: 5.0,
             hot: stream(0.08, 90.0),
             cold: stream(0.3, 10.0),
-            wall: Wall::Tube { inner_diameter_m: 0.02, outer_diameter_m: 0.024, conductivity_w_mk: 16.0 },
+            wall: Wall::Tube { inner_diameter_m: 0.02, outer_diameter_m: 0.024, conductivity_w_mk: 16.0, tube_length_per_length: 1.0 },
             reference_area_per_length_m: 0.024 * std::f64::consts::PI,
         };
         let t = CellTemps { hot_in: 70.0, hot_out: 68.0, cold_in: 20.0, cold_out: 21.0, wall: 40.0 };

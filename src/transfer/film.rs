@@ -1,8 +1,28 @@
-//! Film-coefficient correlations behind one trait.
+//! Film-coefficient correlations behind one trait, each with its published validity range.
 
+use super::fin::{surface_efficiency, Fin};
 use super::Channel;
-use crate::fluid::Props;
+use crate::fluid::{Fluid, Props};
 use std::fmt::Debug;
+
+/// What a correlation may use: the channel, the flow, the bulk state and the wall.
+#[derive(Debug, Clone, Copy)]
+pub struct FilmInput<'a> {
+    /// Flow passage.
+    pub channel: &'a Channel,
+    /// Mass flow, kg/s.
+    pub mass_flow_kg_s: f64,
+    /// Bulk properties.
+    pub props: &'a Props,
+    /// Bulk temperature, °C.
+    pub bulk_c: f64,
+    /// Wall temperature seen by this film (the wall node), °C.
+    pub wall_c: f64,
+    /// The fluid, for properties at the wall temperature.
+    pub fluid: &'a dyn Fluid,
+    /// True for the stream being heated (the cold stream).
+    pub heated: bool,
+}
 
 /// Film coefficient and the dimensionless groups behind it.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -13,14 +33,36 @@ pub struct FilmResult {
     pub reynolds: Option<f64>,
     /// Nusselt number, if computed from a correlation.
     pub nusselt: Option<f64>,
+    /// Overall surface efficiency η_o of a finned surface (1 for a bare one).
+    pub surface_efficiency: f64,
+    /// False when the local state is outside the correlation's published validity range.
+    pub in_range: bool,
 }
 
-/// A way to get a local film coefficient from the local bulk state.
+impl FilmResult {
+    fn bare(h: f64, reynolds: Option<f64>, nusselt: Option<f64>, in_range: bool) -> Self {
+        Self { h, reynolds, nusselt, surface_efficiency: 1.0, in_range }
+    }
+}
+
+/// A way to get a local film coefficient from the local state.
 pub trait FilmCorrelation: Send + Sync + Debug {
     /// Short name for reports.
     fn name(&self) -> &'static str;
-    /// Film coefficient for `mass_flow_kg_s` through `channel` with bulk properties `props`.
-    fn film(&self, channel: &Channel, mass_flow_kg_s: f64, props: &Props) -> FilmResult;
+    /// Film coefficient for the local state.
+    fn film(&self, input: &FilmInput) -> FilmResult;
+    /// True if the result depends on the wall temperature (Newton then differentiates it).
+    fn uses_wall_temperature(&self) -> bool {
+        false
+    }
+    /// The published validity range, in words (for reports).
+    fn validity(&self) -> String;
+    /// Darcy friction factor for the pressure drop, or None where no friction model is
+    /// available for this surface. Default: Churchill (1977) with the channel's roughness.
+    fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
+        let d = channel.hydraulic_diameter_m?;
+        Some(super::friction::darcy_churchill(reynolds.max(1e-9), channel.roughness_m / d))
+    }
 }
 
 /// A film coefficient the user measured or chose, used as given everywhere.
@@ -34,22 +76,13 @@ impl FilmCorrelation for FixedFilm {
     fn name(&self) -> &'static str {
         "fixed"
     }
-    fn film(&self, channel: &Channel, mass_flow_kg_s: f64, props: &Props) -> FilmResult {
-        FilmResult { h: self.h, reynolds: channel.reynolds(mass_flow_kg_s, props.viscosity), nusselt: None }
+    fn film(&self, i: &FilmInput) -> FilmResult {
+        FilmResult::bare(self.h, i.channel.reynolds(i.mass_flow_kg_s, i.props.viscosity), None, true)
+    }
+    fn validity(&self) -> String {
+        "as given by the user".into()
     }
 }
-
-/// Gnielinski (1976) for turbulent flow with the Petukhov friction factor, the channel's
-/// fully developed laminar Nusselt number below Re = 2300, and between 2300 and 10⁴ the
-/// linear blend in Re that Gnielinski (VDI Heat Atlas, 2nd ed. 2010, section G1 [from
-/// memory]) recommends, which is continuous at both ends so Newton never meets a jump.
-#[derive(Debug, Clone, Default)]
-pub struct Gnielinski;
-
-/// Laminar limit of the blend.
-const RE_LAMINAR: f64 = 2300.0;
-/// Fully turbulent start of the blend.
-const RE_TURBULENT: f64 = 1.0e4;
 
 /// Petukhov smooth-tube Darcy friction factor (0.790 ln Re − 1.64)⁻², 3000 ≤ Re ≤ 5·10⁶
 /// (Petukhov 1970; Incropera et al. Eq. 8.21).
@@ -65,17 +98,96 @@ pub fn gnielinski_nusselt(re: f64, pr: f64) -> f64 {
     f8 * (re - 1000.0) * pr / (1.0 + 12.7 * f8.sqrt() * (pr.powf(2.0 / 3.0) - 1.0))
 }
 
+/// Dittus–Boelter: Nu = 0.023 Re^0.8 Pr^n, n = 0.4 heated, 0.3 cooled; Re ≥ 10⁴,
+/// 0.6 ≤ Pr ≤ 160, L/D ≥ 10 (Dittus & Boelter 1930; Incropera Eq. 8.60).
+pub fn dittus_boelter_nusselt(re: f64, pr: f64, heated: bool) -> f64 {
+    0.023 * re.powf(0.8) * pr.powf(if heated { 0.4 } else { 0.3 })
+}
+
+/// Sieder–Tate turbulent: Nu = 0.027 Re^0.8 Pr^⅓ (μ/μ_s)^0.14; Re ≥ 10⁴, 0.7 ≤ Pr ≤ 16 700
+/// (Sieder & Tate 1936; Incropera Eq. 8.61 [M]).
+pub fn sieder_tate_turbulent_nusselt(re: f64, pr: f64, mu_ratio: f64) -> f64 {
+    0.027 * re.powf(0.8) * pr.powf(1.0 / 3.0) * mu_ratio.powf(0.14)
+}
+
+/// Hausen, thermal entry length (fully developed velocity, uniform wall temperature), mean
+/// over length L: Nu = 3.66 + 0.0668 Gz/(1 + 0.04 Gz^⅔), Gz = Re Pr D/L
+/// (Hausen 1943; Incropera Eq. 8.57). Laminar.
+pub fn hausen_nusselt(gz: f64) -> f64 {
+    3.66 + 0.0668 * gz / (1.0 + 0.04 * gz.powf(2.0 / 3.0))
+}
+
+/// Sieder–Tate combined entry, laminar, mean over L: Nu = 1.86 (Gz)^⅓ (μ/μ_s)^0.14, valid for
+/// 0.48 < Pr < 16 700, 0.0044 < μ/μ_s < 9.75 and Gz^⅓ (μ/μ_s)^0.14 ≥ 2 (Incropera Eq. 8.58 [M]);
+/// below that limit the fully developed 3.66 governs, so the larger of the two is used.
+pub fn sieder_tate_laminar_nusselt(gz: f64, mu_ratio: f64) -> f64 {
+    (1.86 * gz.powf(1.0 / 3.0) * mu_ratio.powf(0.14)).max(3.66)
+}
+
+/// Laminar model for internal flow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Laminar {
+    /// Fully developed, uniform wall temperature (3.66 in a tube; the channel's own value).
+    FullyDevelopedT,
+    /// Fully developed, uniform heat flux (48/11 = 4.36 in a tube; 1.19× the channel's T value elsewhere [M]).
+    FullyDevelopedH,
+    /// Hausen thermal entry (mean over the flow length).
+    Hausen,
+    /// Sieder–Tate combined entry (mean over the flow length).
+    SiederTate,
+}
+
+/// Turbulent model for internal flow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Turbulent {
+    /// Gnielinski with Petukhov friction.
+    Gnielinski,
+    /// Dittus–Boelter.
+    DittusBoelter,
+    /// Sieder–Tate (includes its own viscosity ratio).
+    SiederTate,
+}
+
+/// Property-ratio correction for wall-to-bulk property differences.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum WallCorrection {
+    /// None.
+    None,
+    /// Liquids: Nu × (μ_b/μ_w)^0.14 (Sieder & Tate 1936).
+    Viscosity,
+    /// Gases: Nu × (T_b/T_w)^0.45 when heated, × 1 when cooled (absolute temperatures;
+    /// Gnielinski's recommendation as quoted in the VDI Heat Atlas [M]).
+    GasTemperature,
+}
+
+/// Laminar limit of the transition blend.
+pub const RE_LAMINAR: f64 = 2300.0;
+/// Fully turbulent start of the blend.
+pub const RE_TURBULENT: f64 = 1.0e4;
+
+/// Internal flow in tubes, annuli and plate channels: a laminar model below Re = 2300, a
+/// turbulent model above 10⁴, and between them the linear blend in Re that Gnielinski
+/// recommends (VDI Heat Atlas, 2nd ed. 2010, section G1 [M]): Nu = (1 − γ)Nu_lam(2300) +
+/// γ Nu_turb(10⁴), γ = (Re − 2300)/(10⁴ − 2300). The blend is continuous at both ends, so
+/// Newton never meets a jump; cells in it are reported as outside the correlations' range.
+#[derive(Debug, Clone)]
+pub struct InternalFlow {
+    /// Laminar model.
+    pub laminar: Laminar,
+    /// Turbulent model.
+    pub turbulent: Turbulent,
+    /// Property-ratio correction.
+    pub wall_correction: WallCorrection,
+}
+
+/// Gnielinski's internal-flow set with fully developed laminar flow and no wall correction.
+#[derive(Debug, Clone, Default)]
+pub struct Gnielinski;
+
 impl Gnielinski {
     /// Nusselt number over all regimes for a channel whose laminar value is `nu_laminar`.
     pub fn nusselt(re: f64, pr: f64, nu_laminar: f64) -> f64 {
-        if re <= RE_LAMINAR {
-            nu_laminar
-        } else if re >= RE_TURBULENT {
-            gnielinski_nusselt(re, pr)
-        } else {
-            let gamma = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
-            (1.0 - gamma) * nu_laminar + gamma * gnielinski_nusselt(RE_TURBULENT, pr)
-        }
+        blend(re, nu_laminar, || gnielinski_nusselt(RE_TURBULENT, pr), || gnielinski_nusselt(re, pr))
     }
 }
 
@@ -83,11 +195,322 @@ impl FilmCorrelation for Gnielinski {
     fn name(&self) -> &'static str {
         "gnielinski"
     }
-    fn film(&self, channel: &Channel, mass_flow_kg_s: f64, props: &Props) -> FilmResult {
-        // Validation guarantees the geometry exists for this correlation.
-        let d = channel.hydraulic_diameter_m.unwrap_or(1.0);
-        let re = channel.reynolds(mass_flow_kg_s, props.viscosity).unwrap_or(0.0);
-        let nu = Self::nusselt(re, props.prandtl(), channel.laminar_nusselt);
-        FilmResult { h: nu * props.conductivity / d, reynolds: Some(re), nusselt: Some(nu) }
+    fn film(&self, i: &FilmInput) -> FilmResult {
+        InternalFlow { laminar: Laminar::FullyDevelopedT, turbulent: Turbulent::Gnielinski, wall_correction: WallCorrection::None }.film(i)
+    }
+    fn validity(&self) -> String {
+        "laminar Re < 2300; turbulent 10⁴ ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000 (Gnielinski 1976)".into()
+    }
+}
+
+fn blend(re: f64, nu_laminar: f64, turbulent_at_start: impl Fn() -> f64, turbulent: impl Fn() -> f64) -> f64 {
+    if re <= RE_LAMINAR {
+        nu_laminar
+    } else if re >= RE_TURBULENT {
+        turbulent()
+    } else {
+        let gamma = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
+        (1.0 - gamma) * nu_laminar + gamma * turbulent_at_start()
+    }
+}
+
+impl InternalFlow {
+    /// Nusselt number and whether the state is inside the chosen correlations' range.
+    pub fn nusselt(&self, re: f64, pr: f64, mu_ratio: f64, gz: f64, nu_fd: f64, heated: bool) -> (f64, bool) {
+        let laminar_at = |re_l: f64| -> (f64, bool) {
+            let gz_l = gz * re_l / re.max(1e-300);
+            match self.laminar {
+                Laminar::FullyDevelopedT => (nu_fd, true),
+                Laminar::FullyDevelopedH => (nu_fd * 48.0 / 11.0 / 3.66, true),
+                // Hausen's entry increment on top of the channel's own fully developed value
+                // (identical to Hausen for a tube, where that value is 3.66).
+                Laminar::Hausen => (hausen_nusselt(gz_l) - 3.66 + nu_fd, true),
+                Laminar::SiederTate => {
+                    let ok = (0.48..16_700.0).contains(&pr) && (0.0044..9.75).contains(&mu_ratio);
+                    (sieder_tate_laminar_nusselt(gz_l, mu_ratio), ok)
+                }
+            }
+        };
+        let turbulent_at = |re_t: f64| -> (f64, bool) {
+            match self.turbulent {
+                Turbulent::Gnielinski => (gnielinski_nusselt(re_t, pr), (3000.0..=5e6).contains(&re_t) && (0.5..=2000.0).contains(&pr)),
+                Turbulent::DittusBoelter => (dittus_boelter_nusselt(re_t, pr, heated), re_t >= 1e4 && (0.6..=160.0).contains(&pr)),
+                Turbulent::SiederTate => (sieder_tate_turbulent_nusselt(re_t, pr, mu_ratio), re_t >= 1e4 && (0.7..=16_700.0).contains(&pr)),
+            }
+        };
+        if re <= RE_LAMINAR {
+            laminar_at(re)
+        } else if re >= RE_TURBULENT {
+            turbulent_at(re)
+        } else {
+            let gamma = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
+            ((1.0 - gamma) * laminar_at(RE_LAMINAR).0 + gamma * turbulent_at(RE_TURBULENT).0, false)
+        }
+    }
+}
+
+impl FilmCorrelation for InternalFlow {
+    fn name(&self) -> &'static str {
+        match self.turbulent {
+            Turbulent::Gnielinski => "gnielinski",
+            Turbulent::DittusBoelter => "dittus_boelter",
+            Turbulent::SiederTate => "sieder_tate",
+        }
+    }
+    fn film(&self, i: &FilmInput) -> FilmResult {
+        let ch = i.channel;
+        let d_flow = ch.hydraulic_diameter_m.unwrap_or(1.0);
+        let d_heat = ch.heat_diameter_m.or(ch.hydraulic_diameter_m).unwrap_or(1.0);
+        let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
+        let pr = i.props.prandtl();
+        let needs_wall = self.uses_wall_temperature();
+        let wall_props = if needs_wall { i.fluid.props(i.wall_c) } else { *i.props };
+        let mu_ratio = i.props.viscosity / wall_props.viscosity;
+        let gz = re * pr * d_flow / ch.flow_length_m;
+        let (mut nu, mut ok) = self.nusselt(re, pr, mu_ratio, gz, ch.laminar_nusselt, i.heated);
+        match self.wall_correction {
+            WallCorrection::None => {}
+            WallCorrection::Viscosity => {
+                // Sieder–Tate correlations already carry the ratio: never apply it twice.
+                let included = (re >= RE_TURBULENT && self.turbulent == Turbulent::SiederTate)
+                    || (re <= RE_LAMINAR && self.laminar == Laminar::SiederTate);
+                if !included {
+                    nu *= mu_ratio.powf(0.14);
+                }
+                ok &= (0.0044..9.75).contains(&mu_ratio);
+            }
+            WallCorrection::GasTemperature => {
+                if i.wall_c > i.bulk_c {
+                    nu *= ((i.bulk_c + 273.15) / (i.wall_c + 273.15)).powf(0.45);
+                }
+            }
+        }
+        if ch.flow_length_m / d_flow < 10.0 && re > RE_LAMINAR {
+            ok = false; // turbulent correlations assume L/D ≥ 10
+        }
+        FilmResult::bare(nu * i.props.conductivity / d_heat, Some(re), Some(nu), ok)
+    }
+    fn uses_wall_temperature(&self) -> bool {
+        self.wall_correction != WallCorrection::None
+            || matches!(self.laminar, Laminar::SiederTate)
+            || matches!(self.turbulent, Turbulent::SiederTate)
+    }
+    fn validity(&self) -> String {
+        let lam = match self.laminar {
+            Laminar::FullyDevelopedT | Laminar::FullyDevelopedH => "laminar fully developed, Re < 2300",
+            Laminar::Hausen => "Hausen thermal entry, Re < 2300",
+            Laminar::SiederTate => "Sieder–Tate entry, Re < 2300, 0.48 < Pr < 16 700, 0.0044 < μ/μ_w < 9.75",
+        };
+        let turb = match self.turbulent {
+            Turbulent::Gnielinski => "Gnielinski 3000 ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000",
+            Turbulent::DittusBoelter => "Dittus–Boelter Re ≥ 10⁴, 0.6 ≤ Pr ≤ 160, L/D ≥ 10",
+            Turbulent::SiederTate => "Sieder–Tate Re ≥ 10⁴, 0.7 ≤ Pr ≤ 16 700, L/D ≥ 10",
+        };
+        format!("{lam}; {turb}; 2300 ≤ Re < 10⁴ blended (outside both)")
+    }
+}
+
+/// Tube-bank layout.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Layout {
+    /// Tubes in line.
+    Aligned,
+    /// Tubes staggered.
+    Staggered,
+}
+
+/// A bank of tubes in crossflow, as the Zukauskas correlation needs it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TubeBank {
+    /// Tube outer diameter, m.
+    pub outer_diameter_m: f64,
+    /// Transverse pitch S_T, m.
+    pub transverse_pitch_m: f64,
+    /// Longitudinal pitch S_L, m.
+    pub longitudinal_pitch_m: f64,
+    /// Layout.
+    pub layout: Layout,
+    /// Number of rows N_L in the flow direction.
+    pub rows: usize,
+    /// Frontal (upstream face) area, m².
+    pub frontal_area_m2: f64,
+}
+
+impl TubeBank {
+    /// Ratio V_max/V: S_T/(S_T − D) for aligned banks and staggered banks whose minimum area
+    /// is the transverse gap, else S_T/(2(S_D − D)), S_D = √(S_L² + (S_T/2)²)
+    /// (Incropera et al., Eqs. 7.57–7.59).
+    pub fn velocity_ratio(&self) -> f64 {
+        let (d, st, sl) = (self.outer_diameter_m, self.transverse_pitch_m, self.longitudinal_pitch_m);
+        let transverse = st / (st - d);
+        match self.layout {
+            Layout::Aligned => transverse,
+            Layout::Staggered => {
+                let sd = (sl * sl + 0.25 * st * st).sqrt();
+                if 2.0 * (sd - d) >= st - d {
+                    transverse
+                } else {
+                    st / (2.0 * (sd - d))
+                }
+            }
+        }
+    }
+
+    /// Zukauskas constants (C₁, m) for Re_max, 1972 table as reproduced in Incropera Table 7.5.
+    /// Between 10² and 10³ the source says to use the single-cylinder result; the
+    /// single-cylinder Zukauskas constants C = 0.51, m = 0.5 (Re 40–1000, Incropera Table 7.4
+    /// [M]) are used there (with the bank's Pr exponent 0.36).
+    fn constants(&self, re: f64) -> (f64, f64) {
+        let ratio = self.transverse_pitch_m / self.longitudinal_pitch_m;
+        match (self.layout, re) {
+            (Layout::Aligned, r) if r < 100.0 => (0.80, 0.40),
+            (Layout::Staggered, r) if r < 100.0 => (0.90, 0.40),
+            (_, r) if r < 1000.0 => (0.51, 0.50),
+            (Layout::Aligned, r) if r < 2e5 => (0.27, 0.63),
+            (Layout::Staggered, r) if r < 2e5 => {
+                if ratio < 2.0 {
+                    (0.35 * ratio.powf(0.2), 0.60)
+                } else {
+                    (0.40, 0.60)
+                }
+            }
+            (Layout::Aligned, _) => (0.021, 0.84),
+            (Layout::Staggered, _) => (0.022, 0.84),
+        }
+    }
+
+    /// Row correction C₂ for N_L < 20 (Incropera Table 7.6), linear between tabulated rows.
+    pub fn row_correction(&self) -> f64 {
+        const ROWS: [f64; 9] = [1.0, 2.0, 3.0, 4.0, 5.0, 7.0, 10.0, 13.0, 16.0];
+        const ALIGNED: [f64; 9] = [0.70, 0.80, 0.86, 0.90, 0.92, 0.95, 0.97, 0.98, 0.99];
+        const STAGGERED: [f64; 9] = [0.64, 0.76, 0.84, 0.89, 0.92, 0.95, 0.97, 0.98, 0.99];
+        let n = self.rows as f64;
+        if n >= 20.0 {
+            return 1.0;
+        }
+        let table = if self.layout == Layout::Aligned { &ALIGNED } else { &STAGGERED };
+        if n >= 16.0 {
+            return table[8] + (1.0 - table[8]) * (n - 16.0) / 4.0;
+        }
+        for k in 0..8 {
+            if n <= ROWS[k + 1] {
+                return table[k] + (table[k + 1] - table[k]) * (n - ROWS[k]) / (ROWS[k + 1] - ROWS[k]);
+            }
+        }
+        1.0
+    }
+
+    /// Nu = C₂ C₁ Re_max^m Pr^0.36 (Pr/Pr_s)^¼ without the switch smoothing (for checks).
+    pub fn nusselt_raw(&self, re_max: f64, pr: f64, pr_wall: f64) -> f64 {
+        let (c1, m) = self.constants(re_max);
+        self.row_correction() * c1 * re_max.powf(m) * pr.powf(0.36) * (pr / pr_wall).powf(0.25)
+    }
+
+    /// The same with each switch between constant sets (10², 10³, 2·10⁵) smoothed by a
+    /// linear blend in ln Re over ±5 %, so the film coefficient is continuous for Newton.
+    pub fn nusselt(&self, re_max: f64, pr: f64, pr_wall: f64) -> f64 {
+        for switch in [100.0, 1000.0, 2e5] {
+            let (lo, hi) = (switch * 0.95, switch * 1.05);
+            if re_max > lo && re_max < hi {
+                let w = (re_max / lo).ln() / (hi / lo).ln();
+                let below = self.row_correction() * {
+                    let (c1, m) = self.constants(lo);
+                    c1 * re_max.powf(m)
+                };
+                let above = self.row_correction() * {
+                    let (c1, m) = self.constants(hi);
+                    c1 * re_max.powf(m)
+                };
+                return ((1.0 - w) * below + w * above) * pr.powf(0.36) * (pr / pr_wall).powf(0.25);
+            }
+        }
+        self.nusselt_raw(re_max, pr, pr_wall)
+    }
+}
+
+/// Zukauskas (1972) for the outside of a tube bank in crossflow, with the Pr_s at the local
+/// wall temperature. Valid 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500.
+#[derive(Debug, Clone)]
+pub struct Zukauskas {
+    /// The bank.
+    pub bank: TubeBank,
+}
+
+impl FilmCorrelation for Zukauskas {
+    fn name(&self) -> &'static str {
+        "zukauskas"
+    }
+    fn film(&self, i: &FilmInput) -> FilmResult {
+        let d = self.bank.outer_diameter_m;
+        let re_max = i.mass_flow_kg_s.abs() / self.bank.frontal_area_m2 * self.bank.velocity_ratio() * d / i.props.viscosity;
+        let pr = i.props.prandtl();
+        let pr_wall = i.fluid.props(i.wall_c).prandtl();
+        let nu = self.bank.nusselt(re_max, pr, pr_wall);
+        let ok = (10.0..=2e6).contains(&re_max) && (0.7..=500.0).contains(&pr);
+        FilmResult::bare(nu * i.props.conductivity / d, Some(re_max), Some(nu), ok)
+    }
+    fn uses_wall_temperature(&self) -> bool {
+        true
+    }
+    fn validity(&self) -> String {
+        "Zukauskas 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500".into()
+    }
+    fn darcy_friction(&self, _: &Channel, _: f64) -> Option<f64> {
+        None // no tube-bank friction correlation is implemented: reported as not computed
+    }
+}
+
+/// Compact surface from test data: Colburn j and Fanning f against Re = G D_h/μ, the way
+/// such data are published (Kays & London, *Compact Heat Exchangers*). h = j G cp Pr^(−2/3)
+/// (Colburn 1933), with the fins' efficiency folded into the overall surface efficiency.
+/// j and f are interpolated linearly in log–log; outside the data's Re range the end
+/// value is used and the cell is reported as outside the range.
+#[derive(Debug, Clone)]
+pub struct CompactSurface {
+    /// (Re, j, f) rows, Re increasing.
+    pub data: Vec<(f64, f64, f64)>,
+    /// Fins, if any.
+    pub fin: Option<Fin>,
+    /// Fin area / total area on this side.
+    pub fin_area_fraction: f64,
+}
+
+impl CompactSurface {
+    /// (j, Fanning f, in range) at `re`.
+    pub fn j_f(&self, re: f64) -> (f64, f64, bool) {
+        let d = &self.data;
+        let n = d.len();
+        if re <= d[0].0 {
+            return (d[0].1, d[0].2, re >= d[0].0 * (1.0 - 1e-12));
+        }
+        if re >= d[n - 1].0 {
+            return (d[n - 1].1, d[n - 1].2, re <= d[n - 1].0 * (1.0 + 1e-12));
+        }
+        let k = d.partition_point(|r| r.0 <= re).min(n - 1).max(1) - 1;
+        let w = (re / d[k].0).ln() / (d[k + 1].0 / d[k].0).ln();
+        let lerp = |a: f64, b: f64| (a.ln() + w * (b.ln() - a.ln())).exp();
+        (lerp(d[k].1, d[k + 1].1), lerp(d[k].2, d[k + 1].2), true)
+    }
+}
+
+impl FilmCorrelation for CompactSurface {
+    fn name(&self) -> &'static str {
+        "compact"
+    }
+    fn film(&self, i: &FilmInput) -> FilmResult {
+        let ch = i.channel;
+        let g = i.mass_flow_kg_s.abs() / ch.flow_area_m2.unwrap_or(1.0);
+        let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
+        let (j, _, ok) = self.j_f(re);
+        let h = j * g * i.props.cp * i.props.prandtl().powf(-2.0 / 3.0);
+        let eta_f = self.fin.map(|f| f.efficiency(h)).unwrap_or(1.0);
+        let nu = h * ch.hydraulic_diameter_m.unwrap_or(1.0) / i.props.conductivity;
+        FilmResult { h, reynolds: Some(re), nusselt: Some(nu), surface_efficiency: surface_efficiency(self.fin_area_fraction, eta_f), in_range: ok }
+    }
+    fn validity(&self) -> String {
+        format!("the surface's test data, {} ≤ Re ≤ {}", self.data[0].0, self.data[self.data.len() - 1].0)
+    }
+    fn darcy_friction(&self, _: &Channel, reynolds: f64) -> Option<f64> {
+        Some(4.0 * self.j_f(reynolds).1) // Fanning → Darcy
     }
 }

@@ -4,10 +4,16 @@
 //! Owns: the local film coefficient from local properties and flow, and the series
 //! resistances per unit length. Must not: know about cells, solvers or files.
 
-mod film;
+pub mod film;
+pub mod fin;
+pub mod friction;
 mod wall;
 
-pub use film::{darcy_petukhov, gnielinski_nusselt, FilmCorrelation, FilmResult, FixedFilm, Gnielinski};
+pub use film::{
+    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski,
+    InternalFlow, Laminar, Layout, TubeBank, Turbulent, WallCorrection, Zukauskas,
+};
+pub use fin::Fin;
 pub use wall::Wall;
 
 /// The passage one stream flows through, as the correlations need it.
@@ -15,8 +21,15 @@ pub use wall::Wall;
 pub struct Channel {
     /// Free-flow cross-section, m² (None when a fixed film coefficient makes it unnecessary).
     pub flow_area_m2: Option<f64>,
-    /// Hydraulic diameter 4A/P_wetted, m.
+    /// Hydraulic diameter 4A/P_wetted, m (Reynolds number and friction).
     pub hydraulic_diameter_m: Option<f64>,
+    /// Diameter in Nu = hD/k if it differs from the hydraulic one (the equivalent diameter
+    /// (D₂² − D₁²)/D₁ of an annulus heated on its inner wall, in Kern's practice), m.
+    pub heat_diameter_m: Option<f64>,
+    /// Length of the stream's flow path (entry-length correlations, L/D checks), m.
+    pub flow_length_m: f64,
+    /// Absolute wall roughness, m.
+    pub roughness_m: f64,
     /// Heat-transfer area per metre of exchanger length on this stream's face of the wall, m²/m.
     pub area_per_length_m: f64,
     /// Fully developed laminar Nusselt number for this channel shape, heated on the wall
@@ -25,6 +38,33 @@ pub struct Channel {
 }
 
 impl Channel {
+    /// A channel known only by its heat-transfer area per metre (fixed film coefficients).
+    pub fn bare(area_per_length_m: f64) -> Self {
+        Self {
+            flow_area_m2: None,
+            hydraulic_diameter_m: None,
+            heat_diameter_m: None,
+            flow_length_m: 1.0,
+            roughness_m: 0.0,
+            area_per_length_m,
+            laminar_nusselt: NU_TUBE_LAMINAR_T,
+        }
+    }
+
+    /// A duct with flow area, hydraulic diameter, heated area per metre, laminar Nusselt
+    /// number and flow-path length; smooth, heat diameter = hydraulic diameter.
+    pub fn duct(flow_area_m2: f64, hydraulic_diameter_m: f64, area_per_length_m: f64, laminar_nusselt: f64, flow_length_m: f64) -> Self {
+        Self {
+            flow_area_m2: Some(flow_area_m2),
+            hydraulic_diameter_m: Some(hydraulic_diameter_m),
+            heat_diameter_m: None,
+            flow_length_m,
+            roughness_m: 0.0,
+            area_per_length_m,
+            laminar_nusselt,
+        }
+    }
+
     /// Reynolds number ṁ·D_h/(A·μ); None when the channel has no flow geometry.
     pub fn reynolds(&self, mass_flow_kg_s: f64, viscosity: f64) -> Option<f64> {
         match (self.flow_area_m2, self.hydraulic_diameter_m) {

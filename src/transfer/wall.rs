@@ -11,6 +11,9 @@ pub enum Wall {
         outer_diameter_m: f64,
         /// Conductivity, W/(m·K).
         conductivity_w_mk: f64,
+        /// Metres of tube per metre of exchanger length (1 for a double pipe; the tube
+        /// count times tube length per depth for a tube bank).
+        tube_length_per_length: f64,
     },
     /// Plane wall: R' = t/(k·a) per metre, a = area per metre of length.
     Plane {
@@ -28,8 +31,8 @@ impl Wall {
     /// the cell's resistance in K/W).
     pub fn resistance_per_length(&self) -> f64 {
         match *self {
-            Wall::Tube { inner_diameter_m, outer_diameter_m, conductivity_w_mk } => {
-                (outer_diameter_m / inner_diameter_m).ln() / (2.0 * std::f64::consts::PI * conductivity_w_mk)
+            Wall::Tube { inner_diameter_m, outer_diameter_m, conductivity_w_mk, tube_length_per_length } => {
+                (outer_diameter_m / inner_diameter_m).ln() / (2.0 * std::f64::consts::PI * conductivity_w_mk * tube_length_per_length)
             }
             Wall::Plane { thickness_m, conductivity_w_mk, area_per_length_m } => {
                 thickness_m / (conductivity_w_mk * area_per_length_m)

@@ -22,7 +22,7 @@ pub fn constant_exchanger(arrangement: Arrangement, ntu: f64, cr: f64, cold_is_m
     let h = 2.0 / ((r_total_per_length - r_wall) * area_per_length);
     assert!(h > 0.0);
     let props = Props { density: 1000.0, cp, viscosity: 1e-3, conductivity: 0.6 };
-    let channel = Channel { flow_area_m2: None, hydraulic_diameter_m: None, area_per_length_m: area_per_length, laminar_nusselt: 4.86 };
+    let channel = Channel::bare(area_per_length);
     let stream = |m: f64, t: f64| Stream {
         fluid: Box::new(ConstantFluid::new(props)),
         mass_flow_kg_s: m,
