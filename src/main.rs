@@ -210,6 +210,9 @@ fn print_report(r: &SteadyReport) {
     if let (Some(a), Some(b)) = (r.lmtd_K, l.lmtd_k) {
         println!("{:<22}{:>16.4}{:>16.4}", "LMTD (K)", a, b);
     }
+    let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
+    println!("{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
+    println!("{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
     println!("\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
     if let Some(g) = &r.grid_error_estimate {
         println!(

@@ -80,6 +80,10 @@ pub struct ProfileRow {
     pub k_hot_w_mk: f64,
     /// Cold conductivity, W/(m·K).
     pub k_cold_w_mk: f64,
+    /// Hot pressure at the cell centre (absolute), Pa; None where no friction model applies.
+    pub p_hot_pa: Option<f64>,
+    /// Cold pressure at the cell centre (absolute), Pa.
+    pub p_cold_pa: Option<f64>,
 }
 
 /// How the grid result compares with the lumped hand result.
@@ -196,6 +200,22 @@ pub struct SteadyReport {
     pub energy_imbalance_W: f64,
     /// Thermodynamic maximum duty, W.
     pub max_duty_W: f64,
+    /// Hot film model and its published validity range.
+    pub hot_film_model: String,
+    /// Cold film model and its published validity range.
+    pub cold_film_model: String,
+    /// Hot cells whose local state is outside the film correlation's validity range.
+    pub hot_cells_outside_correlation_range: usize,
+    /// Cold cells outside their correlation's range.
+    pub cold_cells_outside_correlation_range: usize,
+    /// Hot inlet pressure (absolute), Pa.
+    pub hot_inlet_pressure_Pa: f64,
+    /// Cold inlet pressure (absolute), Pa.
+    pub cold_inlet_pressure_Pa: f64,
+    /// Hot pressure drop inlet → outlet, Pa (None: no friction model for this surface).
+    pub hot_pressure_drop_Pa: Option<f64>,
+    /// Cold pressure drop, Pa.
+    pub cold_pressure_drop_Pa: Option<f64>,
     /// The lumped hand result.
     pub lumped: LumpedResult,
     /// Grid versus lumped.
@@ -220,6 +240,12 @@ pub struct SteadyReport {
     /// Cold face temperatures, °C.
     #[serde(skip)]
     pub cold_faces_c: Vec<f64>,
+    /// Hot face pressures, Pa (empty if not computed).
+    #[serde(skip)]
+    pub hot_faces_pa: Vec<f64>,
+    /// Cold face pressures, Pa (empty if not computed).
+    #[serde(skip)]
+    pub cold_faces_pa: Vec<f64>,
 }
 
 impl SteadyReport {

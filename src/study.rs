@@ -113,22 +113,19 @@ fn assemble(
 ) -> SteadyReport {
     let arr = ex.arrangement;
     let (th_in, tc_in) = (ex.hot.inlet_c, ex.cold.inlet_c);
+    let details: Vec<_> = (0..sol.cells).map(|i| ex.cell(sol.dx_m, &sol.cell_temps(arr, i))).collect();
+    let (hot_faces_pa, cold_faces_pa) = pressures(ex, sol, &details);
+    let centre = |faces: &[f64], i: usize| (!faces.is_empty()).then(|| 0.5 * (faces[i] + faces[i + 1]));
     let mut profile = Vec::with_capacity(sol.cells);
     let (mut ua, mut hot_release, mut cold_gain) = (0.0, 0.0, 0.0);
-    let (mut laminar, mut transition) = ([0usize; 2], [0usize; 2]);
-    for i in 0..sol.cells {
-        let d = ex.cell(sol.dx_m, &sol.cell_temps(arr, i));
+    let mut outside = [0usize; 2];
+    for (i, d) in details.iter().enumerate() {
         ua += d.ua_per_length_w_mk * sol.dx_m;
         hot_release += d.balance.hot_release_w;
         cold_gain += d.balance.cold_gain_w;
         let q_per_length = d.balance.hot_to_wall_w / sol.dx_m;
-        for (k, re) in [d.hot_film.reynolds, d.cold_film.reynolds].into_iter().enumerate() {
-            match re {
-                Some(re) if re < 2300.0 => laminar[k] += 1,
-                Some(re) if re < 1.0e4 => transition[k] += 1,
-                _ => {}
-            }
-        }
+        outside[0] += usize::from(!d.hot_film.in_range);
+        outside[1] += usize::from(!d.cold_film.in_range);
         profile.push(ProfileRow {
             x_m: (i as f64 + 0.5) * sol.dx_m,
             hot_c: d.hot_bulk_c,
@@ -151,6 +148,8 @@ fn assemble(
             rho_cold_kg_m3: d.cold_props.density,
             k_hot_w_mk: d.hot_props.conductivity,
             k_cold_w_mk: d.cold_props.conductivity,
+            p_hot_pa: centre(&hot_faces_pa, i),
+            p_cold_pa: centre(&cold_faces_pa, i),
         });
     }
     let q = key_quantities(ex, sol);
@@ -172,18 +171,30 @@ fn assemble(
         ua_difference_percent: pct(ua, lumped.ua_w_k),
     };
     let mut warnings = Vec::new();
-    for (k, name) in ["hot", "cold"].iter().enumerate() {
-        if laminar[k] > 0 {
+    for (k, (name, stream)) in [("hot", &ex.hot), ("cold", &ex.cold)].into_iter().enumerate() {
+        if outside[k] > 0 {
             warnings.push(format!(
-                "{name} stream: {} of {} cells are laminar (Re < 2300); fully developed laminar Nusselt number used",
-                laminar[k], sol.cells
+                "{name} stream: {} of {} cells are outside the validity range of the {} correlation ({}); its film coefficient there is extrapolated or blended and less certain",
+                outside[k],
+                sol.cells,
+                stream.film.name(),
+                stream.film.validity()
             ));
         }
-        if transition[k] > 0 {
-            warnings.push(format!(
-                "{name} stream: {} of {} cells are in the transition range 2300 ≤ Re < 10 000, where film coefficients are uncertain (blended)",
-                transition[k], sol.cells
-            ));
+    }
+    let drop = |faces: &[f64], inlet_at_end: bool| {
+        (!faces.is_empty()).then(|| if inlet_at_end { faces[faces.len() - 1] - faces[0] } else { faces[0] - faces[faces.len() - 1] })
+    };
+    let hot_dp = drop(&hot_faces_pa, false);
+    let cold_dp = drop(&cold_faces_pa, arr == crate::model::Arrangement::Counterflow);
+    for (name, stream, dp) in [("hot", &ex.hot, hot_dp), ("cold", &ex.cold, cold_dp)] {
+        match dp {
+            None => warnings.push(format!("{name} stream: pressure drop not computed (no friction model for the {} surface)", stream.film.name())),
+            Some(dp) if dp > 0.3 * stream.inlet_pressure_pa => warnings.push(format!(
+                "{name} stream: pressure drop {:.0} Pa is over 30 % of the inlet pressure; compressibility effects beyond this model may matter",
+                dp
+            )),
+            _ => {}
         }
     }
     if let Some(e) = &grid_error_estimate {
@@ -217,6 +228,14 @@ fn assemble(
         cold_heat_gained_W: cold_gain,
         energy_imbalance_W: hot_release - cold_gain,
         max_duty_W: ex.max_duty_w(),
+        hot_film_model: format!("{}: {}", ex.hot.film.name(), ex.hot.film.validity()),
+        cold_film_model: format!("{}: {}", ex.cold.film.name(), ex.cold.film.validity()),
+        hot_cells_outside_correlation_range: outside[0],
+        cold_cells_outside_correlation_range: outside[1],
+        hot_inlet_pressure_Pa: ex.hot.inlet_pressure_pa,
+        cold_inlet_pressure_Pa: ex.cold.inlet_pressure_pa,
+        hot_pressure_drop_Pa: hot_dp,
+        cold_pressure_drop_Pa: cold_dp,
         lumped,
         grid_vs_lumped,
         grid_error_estimate,
@@ -227,5 +246,36 @@ fn assemble(
         faces_m: (0..=sol.cells).map(|j| j as f64 * sol.dx_m).collect(),
         hot_faces_c: sol.hot_faces_c.clone(),
         cold_faces_c: sol.cold_faces_c.clone(),
+        hot_faces_pa,
+        cold_faces_pa,
     }
+}
+
+/// Face pressures of both streams, marched from each inlet in its own flow direction
+/// (empty where the surface has no friction model). The thermal solution does not depend
+/// on pressure for the property models here (liquids and tables at one pressure; ideal-gas
+/// air, whose cp, μ and k are pressure-independent and whose Re = G·D/μ does not involve ρ),
+/// so the march follows the converged temperatures. Bends and headers are not included.
+fn pressures(ex: &Exchanger, sol: &SteadySolution, details: &[crate::model::CellDetail]) -> (Vec<f64>, Vec<f64>) {
+    let n = sol.cells;
+    let march = |stream: &crate::model::Stream, faces_c: &[f64], reversed: bool, re: &dyn Fn(usize) -> Option<f64>| -> Vec<f64> {
+        let mut p = vec![0.0; n + 1];
+        let order: Vec<usize> = if reversed { (0..n).rev().collect() } else { (0..n).collect() };
+        let start = if reversed { n } else { 0 };
+        p[start] = stream.inlet_pressure_pa;
+        for i in order {
+            let (up, down) = if reversed { (i + 1, i) } else { (i, i + 1) };
+            // A tube-bank circuit winds through the bank: its path per cell is longer than Δx.
+            let path = sol.dx_m * stream.channel.flow_length_m / ex.length_m;
+            match stream.pressure_drop(path, faces_c[up], faces_c[down], p[up], re(i)) {
+                Some(dp) => p[down] = p[up] - dp,
+                None => return Vec::new(),
+            }
+        }
+        p
+    };
+    let hot = march(&ex.hot, &sol.hot_faces_c, false, &|i| details[i].hot_film.reynolds);
+    let cold_reversed = ex.arrangement == crate::model::Arrangement::Counterflow;
+    let cold = march(&ex.cold, &sol.cold_faces_c, cold_reversed, &|i| details[i].cold_film.reynolds);
+    (hot, cold)
 }

@@ -74,6 +74,7 @@ fn series_resistance_chain() {
         fluid: Box::new(ConstantFluid::new(props)),
         mass_flow_kg_s: 1.0,
         inlet_c: t,
+        inlet_pressure_pa: 101_325.0,
         fouling_m2k_w: rf,
         film: Box::new(FixedFilm { h }),
         channel: Channel::bare(a),

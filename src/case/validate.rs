@@ -794,5 +794,13 @@ fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> St
             Box::new(surface.clone())
         }
     };
-    Stream { fluid, mass_flow_kg_s: s.mass_flow_kg_s, inlet_c: s.inlet_c, fouling_m2k_w: s.fouling_m2k_w, film, channel }
+    Stream {
+        fluid,
+        mass_flow_kg_s: s.mass_flow_kg_s,
+        inlet_c: s.inlet_c,
+        inlet_pressure_pa: s.pressure_pa,
+        fouling_m2k_w: s.fouling_m2k_w,
+        film,
+        channel,
+    }
 }

@@ -63,6 +63,12 @@ pub trait Fluid: Send + Sync + Debug {
     /// continues linearly with the end-point cp, so that it stays monotone.
     fn enthalpy(&self, t_c: f64) -> f64;
 
+    /// Density at temperature `t_c` and pressure `p_pa`, kg/m³. The default ignores the
+    /// pressure (liquids, tables at one pressure); ideal gases override it.
+    fn density_at(&self, t_c: f64, _p_pa: f64) -> f64 {
+        self.props(t_c).density
+    }
+
     /// Temperature (°C) whose enthalpy is `h` (J/kg): Newton on h(T) with cp as slope,
     /// safeguarded by bisection inside a bracket. Enthalpy is monotone in T for a
     /// single-phase fluid, so the root is unique.

@@ -336,6 +336,12 @@ impl Fluid for TableFluid {
         };
         Props { density, cp: horner(&seg.cp, u), viscosity: horner(&seg.ln_mu, u).exp(), conductivity: horner(&seg.k, u) }
     }
+    fn density_at(&self, t_c: f64, p_pa: f64) -> f64 {
+        match self.molar_mass {
+            Some(m) => p_pa * m / (R_UNIVERSAL * (t_c.clamp(self.t[0], *self.t.last().unwrap()) + 273.15)),
+            None => self.props(t_c).density,
+        }
+    }
     fn enthalpy(&self, t_c: f64) -> f64 {
         let n = self.t.len();
         if t_c < self.t[0] {

@@ -51,6 +51,8 @@ pub struct Stream {
     pub mass_flow_kg_s: f64,
     /// Inlet temperature, °C.
     pub inlet_c: f64,
+    /// Inlet pressure (absolute), Pa.
+    pub inlet_pressure_pa: f64,
     /// Fouling resistance on this stream's face of the wall, m²·K/W.
     pub fouling_m2k_w: f64,
     /// Film-coefficient correlation.
@@ -74,6 +76,25 @@ impl Stream {
             heated,
         };
         (props, self.film.film(&input))
+    }
+
+    /// Pressure drop across a cell of length `dx_m` (Pa, positive in the flow direction)
+    /// from the stream's upstream face at `t_in` (°C) and pressure `p_in` to its downstream
+    /// face at `t_out`: friction f·(Δx/D_h)·G²/(2ρ̄) with the correlation's Darcy factor at
+    /// the bulk Reynolds number, plus acceleration G²(1/ρ_out − 1/ρ_in); densities at the
+    /// local pressure (which matters for gases). None where the surface has no friction model.
+    pub fn pressure_drop(&self, dx_m: f64, t_in: f64, t_out: f64, p_in: f64, reynolds: Option<f64>) -> Option<f64> {
+        let area = self.channel.flow_area_m2?;
+        let d = self.channel.hydraulic_diameter_m?;
+        let f = self.film.darcy_friction(&self.channel, reynolds?)?;
+        let g = self.mass_flow_kg_s / area;
+        let rho_in = self.fluid.density_at(t_in, p_in);
+        // Friction first at the inlet density, then the outlet density at the reduced pressure.
+        let friction = |rho_mean: f64| f * dx_m / d * g * g / (2.0 * rho_mean);
+        let rho_out_guess = self.fluid.density_at(t_out, p_in - friction(rho_in));
+        let rho_mean = 2.0 / (1.0 / rho_in + 1.0 / rho_out_guess);
+        let rho_out = self.fluid.density_at(t_out, p_in - friction(rho_mean));
+        Some(friction(2.0 / (1.0 / rho_in + 1.0 / rho_out)) + g * g * (1.0 / rho_out - 1.0 / rho_in))
     }
 
     /// Resistance per metre between this stream's bulk and the wall's conducting metal
@@ -285,19 +306,32 @@ mod tests {
     /// full cell model (regression guard for sign or factor slips).
     #[test]
     fn jacobian_matches_central_differences() {
+        jacobian_check(Box::new(Gnielinski));
+        // Wall-temperature-dependent films: the wall column picks up their dependence too.
+        jacobian_check(Box::new(crate::transfer::InternalFlow {
+            laminar: crate::transfer::Laminar::SiederTate,
+            turbulent: crate::transfer::Turbulent::SiederTate,
+            wall_correction: crate::transfer::WallCorrection::Viscosity,
+        }));
+    }
+
+    fn jacobian_check(film: Box<dyn FilmCorrelation>) {
         let channel = |d: f64| Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, NU_TUBE_LAMINAR_T, 5.0);
         let stream = |m: f64, t: f64| Stream {
             fluid: Box::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
             mass_flow_kg_s: m,
             inlet_c: t,
+            inlet_pressure_pa: 3e5,
             fouling_m2k_w: 1e-4,
             film: Box::new(Gnielinski),
             channel: channel(0.02),
         };
+        let mut hot = stream(0.08, 90.0);
+        hot.film = film;
         let ex = Exchanger {
             arrangement: Arrangement::Counterflow,
             length_m: 5.0,
-            hot: stream(0.08, 90.0),
+            hot,
             cold: stream(0.3, 10.0),
             wall: Wall::Tube { inner_diameter_m: 0.02, outer_diameter_m: 0.024, conductivity_w_mk: 16.0, tube_length_per_length: 1.0 },
             reference_area_per_length_m: 0.024 * std::f64::consts::PI,

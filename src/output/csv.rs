@@ -4,7 +4,7 @@ use crate::results::SteadyReport;
 use std::fmt::Write;
 
 /// Column names, in order.
-pub const COLUMNS: [&str; 21] = [
+pub const COLUMNS: [&str; 23] = [
     "x_m",
     "hot_C",
     "cold_C",
@@ -26,6 +26,8 @@ pub const COLUMNS: [&str; 21] = [
     "rho_cold_kg_m3",
     "k_hot_W_mK",
     "k_cold_W_mK",
+    "p_hot_Pa",
+    "p_cold_Pa",
 ];
 
 /// The CSV text (empty fields where a value does not exist, e.g. Re without flow geometry).
@@ -36,7 +38,7 @@ pub fn profiles(report: &SteadyReport) -> String {
     for r in &report.profile {
         let _ = writeln!(
             s,
-            "{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{},{},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e}",
+            "{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{},{},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{},{}",
             r.x_m,
             r.hot_c,
             r.cold_c,
@@ -57,7 +59,9 @@ pub fn profiles(report: &SteadyReport) -> String {
             r.rho_hot_kg_m3,
             r.rho_cold_kg_m3,
             r.k_hot_w_mk,
-            r.k_cold_w_mk
+            r.k_cold_w_mk,
+            opt(r.p_hot_pa),
+            opt(r.p_cold_pa)
         );
     }
     s

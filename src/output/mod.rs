@@ -42,7 +42,7 @@ fn io(path: &Path) -> impl FnOnce(std::io::Error) -> OutputError + '_ {
 }
 
 /// Files a steady run writes, relative to its folder.
-pub const STEADY_FILES: [&str; 4] = ["summary.json", "profiles.csv", "temperatures.svg", "heat_flux.svg"];
+pub const STEADY_FILES: [&str; 5] = ["summary.json", "profiles.csv", "temperatures.svg", "heat_flux.svg", "pressure.svg"];
 
 /// Check every number in the report is finite.
 pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
@@ -133,5 +133,6 @@ fn write_all(report: &SteadyReport, dir: &Path) -> Result<(), OutputError> {
     std::fs::write(&profiles, csv::profiles(report)).map_err(io(&profiles))?;
     svg::temperatures(report, &dir.join("temperatures.svg"))?;
     svg::heat_flux(report, &dir.join("heat_flux.svg"))?;
+    svg::pressure(report, &dir.join("pressure.svg"))?;
     Ok(())
 }

@@ -129,3 +129,61 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     }
     root.present().map_err(|x| e(x.to_string()))
 }
+
+/// Pressure drop from each stream's inlet along the length (streams without a friction
+/// model are left out, and the plot says so).
+pub fn pressure(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, SIZE).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let mut series: Vec<(String, RGBColor, Vec<(f64, f64)>)> = Vec::new();
+    for (name, color, faces, p_in) in [
+        ("hot stream", HOT, &r.hot_faces_pa, r.hot_inlet_pressure_Pa),
+        ("cold stream", COLD, &r.cold_faces_pa, r.cold_inlet_pressure_Pa),
+    ] {
+        if !faces.is_empty() {
+            let pts = r.faces_m.iter().zip(faces.iter()).map(|(&x, &p)| (x, (p_in - p) * 1e-3)).collect();
+            series.push((name.to_string(), color, pts));
+        }
+    }
+    let (lo, hi) = if series.is_empty() { (0.0, 1.0) } else { span(series.iter().flat_map(|s| s.2.iter().map(|p| p.1)).chain([0.0])) };
+    let missing: Vec<&str> = [("hot", r.hot_faces_pa.is_empty()), ("cold", r.cold_faces_pa.is_empty())]
+        .iter()
+        .filter(|(_, m)| *m)
+        .map(|(n, _)| *n)
+        .collect();
+    let note = if missing.is_empty() { String::new() } else { format!(" — not computed for the {} stream", missing.join(" and ")) };
+    let mut chart = ChartBuilder::on(&root)
+        .caption(format!("{}: pressure drop from each inlet{note}", r.case), ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(50)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..r.length_m, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart
+        .configure_mesh()
+        .x_desc("position along the hot stream's flow, x (m)")
+        .y_desc("pressure drop from inlet, Δp (kPa)")
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    let any = !series.is_empty();
+    for (label, color, pts) in series {
+        chart
+            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label(label)
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+    }
+    if any {
+        chart
+            .configure_series_labels()
+            .background_style(WHITE.mix(0.85))
+            .border_style(BLACK)
+            .position(SeriesLabelPosition::UpperLeft)
+            .label_font(("sans-serif", 14))
+            .draw()
+            .map_err(|x| e(x.to_string()))?;
+    }
+    root.present().map_err(|x| e(x.to_string()))
+}

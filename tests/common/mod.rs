@@ -27,6 +27,7 @@ pub fn constant_exchanger(arrangement: Arrangement, ntu: f64, cr: f64, cold_is_m
         fluid: Box::new(ConstantFluid::new(props)),
         mass_flow_kg_s: m,
         inlet_c: t,
+        inlet_pressure_pa: 101_325.0,
         fouling_m2k_w: 0.0,
         film: Box::new(FixedFilm { h }),
         channel: channel.clone(),
