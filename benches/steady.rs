@@ -20,7 +20,7 @@ struct Calls {
 /// Counts property and enthalpy calls of the fluid it wraps.
 #[derive(Debug)]
 struct Counting {
-    inner: Box<dyn Fluid>,
+    inner: Arc<dyn Fluid>,
     calls: Arc<Calls>,
 }
 
@@ -61,8 +61,8 @@ fn solve_table(case_file: &str) {
     let plain = case.build();
     let (hot_calls, cold_calls) = (Arc::new(Calls::default()), Arc::new(Calls::default()));
     let mut counted = case.build();
-    counted.hot.fluid = Box::new(Counting { inner: case.build().hot.fluid, calls: hot_calls.clone() });
-    counted.cold.fluid = Box::new(Counting { inner: case.build().cold.fluid, calls: cold_calls.clone() });
+    counted.hot.fluid = Arc::new(Counting { inner: case.build().hot.fluid, calls: hot_calls.clone() });
+    counted.cold.fluid = Arc::new(Counting { inner: case.build().cold.fluid, calls: cold_calls.clone() });
     // Per-call cost of each stream's own fluid, measured in this run over its range.
     let cost = |f: &dyn Fluid| {
         let r = f.range();

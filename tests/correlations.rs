@@ -3,7 +3,7 @@
 //! shared/METHODS.md; [M] means the attribution or number is from memory.
 
 use approx::assert_relative_eq;
-use hxgrid::fluid::{ConstantFluid, Fluid, Props};
+use hxgrid::fluid::{ConstantFluid, Props};
 use hxgrid::transfer::film::*;
 use hxgrid::transfer::fin::*;
 use hxgrid::transfer::friction::*;

@@ -71,12 +71,12 @@ fn series_resistance_chain() {
     assert_relative_eq!(wall.resistance_per_length(), 0.002220, max_relative = 2e-4);
     let props = Props { density: 1000.0, cp: 4000.0, viscosity: 1e-3, conductivity: 0.6 };
     let stream = |h: f64, a: f64, rf: f64, t: f64| Stream {
-        fluid: Box::new(ConstantFluid::new(props)),
+        fluid: std::sync::Arc::new(ConstantFluid::new(props)),
         mass_flow_kg_s: 1.0,
         inlet_c: t,
         inlet_pressure_pa: 101_325.0,
         fouling_m2k_w: rf,
-        film: Box::new(FixedFilm { h }),
+        film: std::sync::Arc::new(FixedFilm { h }),
         channel: Channel::bare(a),
     };
     let pi = std::f64::consts::PI;

@@ -12,6 +12,7 @@ use crate::transfer::{
 };
 use std::f64::consts::PI;
 use std::path::Path;
+use std::sync::Arc;
 
 /// One thing wrong with a case, tied to its key.
 #[derive(Debug, Clone, PartialEq)]
@@ -779,11 +780,11 @@ impl Case {
 fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> Stream {
     let fluid = s.fluid.build(s.pressure_pa, s.inlet_c).expect("fluid checked in validation");
     channel.roughness_m = s.roughness_m;
-    let film: Box<dyn FilmCorrelation> = match &s.film {
-        FilmSpec::Internal(model) => Box::new(model.clone()),
-        FilmSpec::Fixed(h) => Box::new(FixedFilm { h: *h }),
+    let film: Arc<dyn FilmCorrelation> = match &s.film {
+        FilmSpec::Internal(model) => Arc::new(model.clone()),
+        FilmSpec::Fixed(h) => Arc::new(FixedFilm { h: *h }),
         FilmSpec::Zukauskas => match geometry {
-            Geometry::TubeBank { bank, .. } => Box::new(Zukauskas { bank: bank.clone() }),
+            Geometry::TubeBank { bank, .. } => Arc::new(Zukauskas { bank: bank.clone() }),
             _ => unreachable!("validation allows zukauskas only on a tube bank"),
         },
         FilmSpec::Compact { surface, hydraulic_diameter_m, free_flow_area_m2, area_per_length_m } => {
@@ -791,7 +792,7 @@ fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> St
             channel.hydraulic_diameter_m = Some(*hydraulic_diameter_m);
             channel.heat_diameter_m = None;
             channel.area_per_length_m = *area_per_length_m;
-            Box::new(surface.clone())
+            Arc::new(surface.clone())
         }
     };
     Stream {

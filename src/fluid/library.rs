@@ -3,6 +3,7 @@
 //! compiled into the program, so it needs no data files at run time.
 
 use super::{ConstantFluid, Fluid, Props, TableError, TableFluid, Water};
+use std::sync::Arc;
 
 /// Built-in tabulated fluids: (name, table text).
 pub const TABLES: [(&str, &str); 9] = [
@@ -62,11 +63,11 @@ pub enum FluidChoice {
 
 impl FluidChoice {
     /// Build the fluid for a stream at `pressure_pa` whose inlet is `inlet_c`.
-    pub fn build(&self, pressure_pa: f64, inlet_c: f64) -> Result<Box<dyn Fluid>, super::FluidError> {
+    pub fn build(&self, pressure_pa: f64, inlet_c: f64) -> Result<Arc<dyn Fluid>, super::FluidError> {
         Ok(match self {
-            FluidChoice::Water => Box::new(Water::new(pressure_pa, Water::phase_at(pressure_pa, inlet_c))?),
-            FluidChoice::Constant(p) => Box::new(ConstantFluid::new(*p)),
-            FluidChoice::Table(t) => Box::new(t.clone().at_pressure(pressure_pa)),
+            FluidChoice::Water => Arc::new(Water::new(pressure_pa, Water::phase_at(pressure_pa, inlet_c))?),
+            FluidChoice::Constant(p) => Arc::new(ConstantFluid::new(*p)),
+            FluidChoice::Table(t) => Arc::new(t.clone().at_pressure(pressure_pa)),
         })
     }
 }

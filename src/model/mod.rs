@@ -20,6 +20,7 @@
 //! the hot stream equals the sum of the cells' heat rates exactly, whatever the properties.
 
 use crate::fluid::{Fluid, Props};
+use std::sync::Arc;
 use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 
 /// Flow arrangement of the two streams.
@@ -43,10 +44,10 @@ impl Arrangement {
 }
 
 /// One stream: its fluid, flow, inlet state and the channel it flows through.
-#[derive(Debug)]
+#[derive(Debug, Clone)]
 pub struct Stream {
     /// Fluid at the stream's pressure.
-    pub fluid: Box<dyn Fluid>,
+    pub fluid: Arc<dyn Fluid>,
     /// Mass flow, kg/s (positive).
     pub mass_flow_kg_s: f64,
     /// Inlet temperature, °C.
@@ -56,7 +57,7 @@ pub struct Stream {
     /// Fouling resistance on this stream's face of the wall, m²·K/W.
     pub fouling_m2k_w: f64,
     /// Film-coefficient correlation.
-    pub film: Box<dyn FilmCorrelation>,
+    pub film: Arc<dyn FilmCorrelation>,
     /// Flow passage.
     pub channel: Channel,
 }
@@ -106,8 +107,9 @@ impl Stream {
     }
 }
 
-/// A two-stream exchanger, ready to be solved. A constructed value is consistent.
-#[derive(Debug)]
+/// A two-stream exchanger, ready to be solved. A constructed value is consistent; cloning
+/// is cheap (fluids and correlations are shared).
+#[derive(Debug, Clone)]
 pub struct Exchanger {
     /// Flow arrangement.
     pub arrangement: Arrangement,
@@ -306,24 +308,24 @@ mod tests {
     /// full cell model (regression guard for sign or factor slips).
     #[test]
     fn jacobian_matches_central_differences() {
-        jacobian_check(Box::new(Gnielinski));
+        jacobian_check(Arc::new(Gnielinski));
         // Wall-temperature-dependent films: the wall column picks up their dependence too.
-        jacobian_check(Box::new(crate::transfer::InternalFlow {
+        jacobian_check(Arc::new(crate::transfer::InternalFlow {
             laminar: crate::transfer::Laminar::SiederTate,
             turbulent: crate::transfer::Turbulent::SiederTate,
             wall_correction: crate::transfer::WallCorrection::Viscosity,
         }));
     }
 
-    fn jacobian_check(film: Box<dyn FilmCorrelation>) {
+    fn jacobian_check(film: Arc<dyn FilmCorrelation>) {
         let channel = |d: f64| Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, NU_TUBE_LAMINAR_T, 5.0);
         let stream = |m: f64, t: f64| Stream {
-            fluid: Box::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
+            fluid: Arc::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
             mass_flow_kg_s: m,
             inlet_c: t,
             inlet_pressure_pa: 3e5,
             fouling_m2k_w: 1e-4,
-            film: Box::new(Gnielinski),
+            film: Arc::new(Gnielinski),
             channel: channel(0.02),
         };
         let mut hot = stream(0.08, 90.0);

@@ -24,12 +24,12 @@ pub fn constant_exchanger(arrangement: Arrangement, ntu: f64, cr: f64, cold_is_m
     let props = Props { density: 1000.0, cp, viscosity: 1e-3, conductivity: 0.6 };
     let channel = Channel::bare(area_per_length);
     let stream = |m: f64, t: f64| Stream {
-        fluid: Box::new(ConstantFluid::new(props)),
+        fluid: std::sync::Arc::new(ConstantFluid::new(props)),
         mass_flow_kg_s: m,
         inlet_c: t,
         inlet_pressure_pa: 101_325.0,
         fouling_m2k_w: 0.0,
-        film: Box::new(FixedFilm { h }),
+        film: std::sync::Arc::new(FixedFilm { h }),
         channel: channel.clone(),
     };
     Exchanger {
