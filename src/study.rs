@@ -113,7 +113,7 @@ fn assemble(
 ) -> SteadyReport {
     let arr = ex.arrangement;
     let (th_in, tc_in) = (ex.hot.inlet_c, ex.cold.inlet_c);
-    let details: Vec<_> = (0..sol.cells).map(|i| ex.cell(sol.dx_m, &sol.cell_temps(arr, i))).collect();
+    let details: Vec<_> = (0..sol.cells).map(|i| ex.cell(sol.dx_m, &sol.cell_temps(i))).collect();
     let (hot_faces_pa, cold_faces_pa) = pressures(ex, sol, &details);
     let centre = |faces: &[f64], i: usize| (!faces.is_empty()).then(|| 0.5 * (faces[i] + faces[i + 1]));
     let mut profile = Vec::with_capacity(sol.cells);

@@ -87,6 +87,7 @@ fn series_resistance_chain() {
         cold: stream(500.0, 2.0 * pi * ro, 1e-4, 20.0),
         wall,
         reference_area_per_length_m: 2.0 * pi * ro,
+        scheme: hxgrid::model::Scheme::Trapezoidal,
     };
     let ua = ex.ua_per_length_at(50.0, 30.0);
     assert_relative_eq!(ua, 20.809, max_relative = 1e-4);

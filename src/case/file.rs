@@ -166,9 +166,19 @@ pub struct PropertiesFile {
     pub conductivity_W_mK: f64,
 }
 
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum SchemeName {
+    Trapezoidal,
+    Upwind,
+    Tvd,
+}
+
 #[derive(Debug, Clone, Default, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SolverFile {
+    /// Spatial scheme: "trapezoidal" (default), "upwind" or "tvd".
+    pub scheme: Option<SchemeName>,
     pub cells: Option<i64>,
     pub residual_tolerance: Option<f64>,
     pub max_iterations: Option<i64>,

@@ -187,6 +187,8 @@ pub struct Case {
     pub cold: StreamSpec,
     /// Steady solver settings.
     pub solver: SteadySettings,
+    /// Spatial scheme.
+    pub scheme: crate::model::Scheme,
     /// Legal but suspicious inputs.
     pub warnings: Vec<String>,
 }
@@ -302,6 +304,11 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         hot,
         cold,
         solver: SteadySettings { cells: cells as usize, tolerance, max_iterations: max_iterations as usize },
+        scheme: match f.solver.scheme {
+            None | Some(SchemeName::Trapezoidal) => crate::model::Scheme::Trapezoidal,
+            Some(SchemeName::Upwind) => crate::model::Scheme::Upwind,
+            Some(SchemeName::Tvd) => crate::model::Scheme::Tvd,
+        },
         warnings: c.warnings,
     })
 }
@@ -773,6 +780,7 @@ impl Case {
             cold: build_stream(&self.cold, cold_channel, &self.geometry),
             wall,
             reference_area_per_length_m: reference,
+            scheme: self.scheme,
         }
     }
 }

@@ -19,7 +19,10 @@
 //! Fluid energy balances use enthalpy differences between faces, so the heat given up by
 //! the hot stream equals the sum of the cells' heat rates exactly, whatever the properties.
 
+pub mod scheme;
+
 use crate::fluid::{Fluid, Props};
+pub use scheme::{Grid, Scheme};
 use std::sync::Arc;
 use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 
@@ -124,19 +127,27 @@ pub struct Exchanger {
     /// Area per metre of length that the local U is referred to, m²/m (tube outer surface
     /// for a double pipe; the wall area for a plane wall).
     pub reference_area_per_length_m: f64,
+    /// Spatial scheme (shared by the steady solver and the transient integrator).
+    pub scheme: Scheme,
 }
 
-/// Temperatures a cell sees, each stream's "in" being its upstream face (°C).
+/// Temperatures a cell sees (°C): each stream's advected temperature on its upstream
+/// ("in") and downstream ("out") face, its bulk temperature for heat transfer (built by the
+/// [`Scheme`]), and the wall.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct CellTemps {
     /// Hot stream at its upstream face.
     pub hot_in: f64,
     /// Hot stream at its downstream face.
     pub hot_out: f64,
+    /// Hot bulk temperature.
+    pub hot_bulk: f64,
     /// Cold stream at its upstream face.
     pub cold_in: f64,
     /// Cold stream at its downstream face.
     pub cold_out: f64,
+    /// Cold bulk temperature.
+    pub cold_bulk: f64,
     /// Wall (mid-thickness) at the cell centre.
     pub wall: f64,
 }
@@ -191,8 +202,8 @@ pub struct CellDetail {
 }
 
 /// Derivatives of the three steady residuals (hot, cold, wall) with respect to the cell's
-/// five temperatures (hot in, hot out, cold in, cold out, wall), W/K.
-pub type CellJacobian = [[f64; 5]; 3];
+/// seven temperatures (hot in, hot out, hot bulk, cold in, cold out, cold bulk, wall), W/K.
+pub type CellJacobian = [[f64; 7]; 3];
 
 /// Step for the finite difference of a side resistance in bulk temperature, K.
 const RESISTANCE_STEP_K: f64 = 1e-4;
@@ -209,8 +220,7 @@ impl Exchanger {
 
     /// The cell model: heat rates of a cell of length `dx_m` at temperatures `t`.
     pub fn cell(&self, dx_m: f64, t: &CellTemps) -> CellDetail {
-        let hot_bulk_c = 0.5 * (t.hot_in + t.hot_out);
-        let cold_bulk_c = 0.5 * (t.cold_in + t.cold_out);
+        let (hot_bulk_c, cold_bulk_c) = (t.hot_bulk, t.cold_bulk);
         let (hot_props, hot_film, r_hot) = self.side_resistance(&self.hot, hot_bulk_c, t.wall);
         let (cold_props, cold_film, r_cold) = self.side_resistance(&self.cold, cold_bulk_c, t.wall);
         let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
@@ -265,9 +275,9 @@ impl Exchanger {
         let (mc_hot_in, mc_hot_out) = (mc(&self.hot, t.hot_in), mc(&self.hot, t.hot_out));
         let (mc_cold_in, mc_cold_out) = (mc(&self.cold, t.cold_in), mc(&self.cold, t.cold_out));
         let jac = [
-            [mc_hot_in - 0.5 * g_hot, -mc_hot_out - 0.5 * g_hot, 0.0, 0.0, -w_hot],
-            [0.0, 0.0, -mc_cold_in - 0.5 * g_cold, mc_cold_out - 0.5 * g_cold, -w_cold],
-            [0.5 * g_hot, 0.5 * g_hot, -0.5 * g_cold, -0.5 * g_cold, w_hot - w_cold],
+            [mc_hot_in, -mc_hot_out, -g_hot, 0.0, 0.0, 0.0, -w_hot],
+            [0.0, 0.0, 0.0, -mc_cold_in, mc_cold_out, -g_cold, -w_cold],
+            [0.0, 0.0, g_hot, 0.0, 0.0, -g_cold, w_hot - w_cold],
         ];
         (d, jac)
     }
@@ -337,18 +347,21 @@ mod tests {
             cold: stream(0.3, 10.0),
             wall: Wall::Tube { inner_diameter_m: 0.02, outer_diameter_m: 0.024, conductivity_w_mk: 16.0, tube_length_per_length: 1.0 },
             reference_area_per_length_m: 0.024 * std::f64::consts::PI,
+            scheme: Scheme::Trapezoidal,
         };
-        let t = CellTemps { hot_in: 70.0, hot_out: 68.0, cold_in: 20.0, cold_out: 21.0, wall: 40.0 };
+        let t = CellTemps { hot_in: 70.0, hot_out: 68.0, hot_bulk: 69.0, cold_in: 20.0, cold_out: 21.0, cold_bulk: 20.5, wall: 40.0 };
         let (_, jac) = ex.cell_with_jacobian(0.05, &t);
         let h = 1e-4;
-        for k in 0..5 {
+        for k in 0..7 {
             let shift = |d: f64| {
                 let mut p = t;
                 match k {
                     0 => p.hot_in += d,
                     1 => p.hot_out += d,
-                    2 => p.cold_in += d,
-                    3 => p.cold_out += d,
+                    2 => p.hot_bulk += d,
+                    3 => p.cold_in += d,
+                    4 => p.cold_out += d,
+                    5 => p.cold_bulk += d,
                     _ => p.wall += d,
                 }
                 ex.cell(0.05, &p).balance.steady_residual()

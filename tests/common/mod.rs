@@ -39,6 +39,7 @@ pub fn constant_exchanger(arrangement: Arrangement, ntu: f64, cr: f64, cold_is_m
         cold: stream(m_cold, 10.0),
         wall: Wall::Plane { thickness_m: 1e-4, conductivity_w_mk: 50.0, area_per_length_m: area_per_length },
         reference_area_per_length_m: area_per_length,
+        scheme: hxgrid::model::Scheme::Trapezoidal,
     }
 }
 
