@@ -127,15 +127,3 @@ fn upwind_and_tvd_schemes_converge_at_their_orders() {
     }
 }
 
-#[test]
-#[ignore]
-fn debug_tvd() {
-    struct P;
-    impl hxgrid::solve::Observer for P {
-        fn iteration(&mut self, k: usize, r: f64) { println!("{k} {r:e}"); }
-    }
-    let mut ex = constant_exchanger(Counterflow, 2.0, 0.5, false);
-    ex.scheme = hxgrid::model::Scheme::Tvd;
-    let r = solve_steady(&ex, &SteadySettings { cells: 40, max_iterations: 30, ..Default::default() }, &mut P);
-    println!("{:?}", r.map(|s| s.iterations));
-}

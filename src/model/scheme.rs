@@ -18,9 +18,8 @@
 //!   14 (1974) 361–370). Second order on smooth profiles, no new extrema at fronts. At the
 //!   outlet cell the ratio of the cell upstream is used. With van Leer's limiter the face
 //!   value is T_i + ab/(a + b) (a, b the upstream and downstream differences, ab > 0), whose
-//!   derivatives Newton uses exactly, except the reach two cells upstream (outside the
-//!   block-tridiagonal band), which it drops: Newton converges linearly, not quadratically,
-//!   for this scheme.
+//!   derivatives Newton uses exactly; a cell then reaches two cells upstream, so its
+//!   Jacobian is banded (solved by banded LU) rather than block tridiagonal.
 
 use super::{Arrangement, CellTemps};
 use nalgebra::Vector3;
@@ -57,7 +56,7 @@ impl Scheme {
 }
 
 /// One dependency of a reconstructed temperature on an unknown: block offset from the cell
-/// (−1, 0, +1), component (0 hot, 1 cold) and weight.
+/// (within [`Grid::reach`]), component (0 hot, 1 cold) and weight.
 pub type Dep = (isize, usize, f64);
 
 /// Up to three dependencies; unused entries have weight 0.
@@ -175,20 +174,29 @@ impl Grid {
         CellTemps { hot_in, hot_out, hot_bulk, cold_in, cold_out, cold_bulk, wall: x[i][2] }
     }
 
-    /// Block offset of cell `j` from cell `i`, if within one.
-    #[inline]
-    fn offset(i: usize, j: usize) -> Option<isize> {
-        let d = j as isize - i as isize;
-        (d.abs() <= 1).then_some(d)
+    /// How many cells away a cell's residual reaches: 1, or 2 for TVD (its inflow face is
+    /// reconstructed from the two cells upstream).
+    pub fn reach(&self) -> usize {
+        if self.scheme == Scheme::Tvd {
+            2
+        } else {
+            1
+        }
     }
 
-    /// Dependencies of the face leaving cell `j` of stream `s`, seen from cell `i`
-    /// (entries more than one cell from `i` are dropped; for the outlet cell the carried-over
-    /// slope ratio is held fixed).
+    /// Block offset of cell `j` from cell `i`, if within the reach.
+    #[inline]
+    fn offset(&self, i: usize, j: usize) -> Option<isize> {
+        let d = j as isize - i as isize;
+        (d.unsigned_abs() <= self.reach()).then_some(d)
+    }
+
+    /// Dependencies of the face leaving cell `j` of stream `s`, seen from cell `i` (exact,
+    /// within the reach).
     fn out_face_deps(&self, x: &[Vector3<f64>], s: usize, j: usize, i: usize, scale: f64) -> Deps {
         let mut deps = [(0, 0, 0.0); 3];
         let mut put = |k: usize, cell: Option<usize>, w: f64| {
-            if let Some(o) = cell.and_then(|c| Self::offset(i, c)) {
+            if let Some(o) = cell.and_then(|c| self.offset(i, c)) {
                 deps[k] = (o, s, scale * w);
             }
         };

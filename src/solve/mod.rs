@@ -1,8 +1,10 @@
 //! Solvers over the cell model. The steady solver is Newton on the whole coupled system
 //! with an O(N) block-tridiagonal linear solve.
 
+mod banded;
 mod blocktri;
 mod steady;
 
+pub use banded::Banded;
 pub use blocktri::BlockTridiagonal;
 pub use steady::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};

@@ -8,7 +8,7 @@
 //! bounds the energy imbalance between the streams (or at the round-off floor of the
 //! enthalpy differences, if that is larger).
 
-use super::BlockTridiagonal;
+use super::{Banded, BlockTridiagonal};
 use crate::lumped;
 use crate::model::{Arrangement, CellTemps, Exchanger, Grid};
 use nalgebra::Vector3;
@@ -144,9 +144,74 @@ fn residuals(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], r: &mut [V
     sum
 }
 
-/// Assemble the block-tridiagonal Jacobian of the residuals: the cell model's derivatives
-/// with respect to its seven inputs, chained through the scheme's reconstruction.
-pub(crate) fn jacobian(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], jac: &mut BlockTridiagonal) {
+/// The Newton matrix: block tridiagonal when each cell reaches only its neighbours,
+/// banded otherwise (TVD).
+#[derive(Debug, Clone)]
+pub(crate) enum Jacobian {
+    /// 3×3 blocks, neighbours only.
+    Tri(BlockTridiagonal),
+    /// Scalar band, reach two cells.
+    Band(Banded),
+}
+
+impl Jacobian {
+    /// A zero matrix suited to the grid's reach.
+    pub(crate) fn for_grid(grid: &Grid) -> Self {
+        if grid.reach() <= 1 {
+            Jacobian::Tri(BlockTridiagonal::zeros(grid.n))
+        } else {
+            let k = 3 * grid.reach() + 2;
+            Jacobian::Band(Banded::zeros(3 * grid.n, k, k))
+        }
+    }
+
+    fn clear(&mut self) {
+        match self {
+            Jacobian::Tri(m) => m.clear(),
+            Jacobian::Band(m) => m.clear(),
+        }
+    }
+
+    /// Add `v` to the derivative of cell `i`'s residual `row` by cell (i + off)'s unknown `comp`.
+    #[inline]
+    pub(crate) fn add(&mut self, i: usize, row: usize, off: isize, comp: usize, v: f64) {
+        match self {
+            Jacobian::Tri(m) => {
+                let block = match off {
+                    -1 => &mut m.lower[i],
+                    0 => &mut m.diag[i],
+                    _ => &mut m.upper[i],
+                };
+                block[(row, comp)] += v;
+            }
+            Jacobian::Band(m) => m.add(3 * i + row, (3 * i as isize + 3 * off) as usize + comp, v),
+        }
+    }
+
+    /// Add `v` on the diagonal of cell `i`, component `comp` (storage terms).
+    pub(crate) fn add_diagonal(&mut self, i: usize, comp: usize, v: f64) {
+        self.add(i, comp, 0, comp, v);
+    }
+
+    /// Solve J Δ = b in place; Err(cell) if singular.
+    pub(crate) fn solve(&mut self, b: &mut [Vector3<f64>]) -> Result<(), usize> {
+        match self {
+            Jacobian::Tri(m) => m.solve(b),
+            Jacobian::Band(m) => {
+                let mut flat: Vec<f64> = b.iter().flat_map(|v| [v[0], v[1], v[2]]).collect();
+                m.solve(&mut flat).map_err(|k| k / 3)?;
+                for (i, v) in b.iter_mut().enumerate() {
+                    *v = Vector3::new(flat[3 * i], flat[3 * i + 1], flat[3 * i + 2]);
+                }
+                Ok(())
+            }
+        }
+    }
+}
+
+/// Assemble the Jacobian of the residuals: the cell model's derivatives with respect to its
+/// seven inputs, chained through the scheme's reconstruction.
+pub(crate) fn jacobian(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], jac: &mut Jacobian) {
     jac.clear();
     for i in 0..lay.n {
         let (_, local) = ex.cell_with_jacobian(dx, &lay.cell_temps(x, i));
@@ -156,13 +221,8 @@ pub(crate) fn jacobian(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], 
                 if w == 0.0 {
                     continue;
                 }
-                let block = match off {
-                    -1 => &mut jac.lower[i],
-                    0 => &mut jac.diag[i],
-                    _ => &mut jac.upper[i],
-                };
-                for row in 0..3 {
-                    block[(row, comp)] += local[row][k] * w;
+                for (row, local_row) in local.iter().enumerate() {
+                    jac.add(i, row, off, comp, local_row[k] * w);
                 }
             }
         }
@@ -230,7 +290,7 @@ pub fn solve_steady(
     let mut r = vec![Vector3::zeros(); n];
     let mut step = vec![Vector3::zeros(); n];
     let mut trial = vec![Vector3::zeros(); n];
-    let mut jac = BlockTridiagonal::zeros(n);
+    let mut jac = Jacobian::for_grid(&lay);
     let mut norm = residuals(ex, &lay, dx, &x, &mut r);
     let mut iterations = 0;
     while norm > target {
@@ -353,8 +413,19 @@ mod tests {
                 let n = 6;
                 let lay = Grid { arrangement: arr, n, scheme, hot_in_c: 90.0, cold_in_c: 10.0 };
                 let x: Vec<Vector3<f64>> = (0..n).map(|i| Vector3::new(80.0 - 3.0 * i as f64, 40.0 - 2.5 * i as f64, 60.0 - 2.0 * i as f64)).collect();
-                let mut jac = BlockTridiagonal::zeros(n);
+                let mut jac = Jacobian::for_grid(&lay);
                 jacobian(&ex, &lay, 4.0 / n as f64, &x, &mut jac);
+                let dense = |i: usize, r: usize, j: usize, c: usize| -> Option<f64> {
+                    match &jac {
+                        Jacobian::Tri(m) => match j as isize - i as isize {
+                            -1 => Some(m.lower[i][(r, c)]),
+                            0 => Some(m.diag[i][(r, c)]),
+                            1 => Some(m.upper[i][(r, c)]),
+                            _ => None,
+                        },
+                        Jacobian::Band(m) => Some(m.get(3 * i + r, 3 * j + c)),
+                    }
+                };
                 let mut r0 = vec![Vector3::zeros(); n];
                 let mut r1 = vec![Vector3::zeros(); n];
                 for j in 0..n {
@@ -366,17 +437,8 @@ mod tests {
                         residuals(&ex, &lay, 4.0 / n as f64, &xm, &mut r1);
                         for i in 0..n {
                             let fd = (r0[i] - r1[i]) / 2e-4;
-                            let block = match j as isize - i as isize {
-                                -1 => Some(jac.lower[i]),
-                                0 => Some(jac.diag[i]),
-                                1 => Some(jac.upper[i]),
-                                _ => None,
-                            };
-                            if block.is_none() && scheme == Scheme::Tvd {
-                                continue; // the reach two cells upstream is dropped by design
-                            }
                             for row in 0..3 {
-                                let a = block.map(|b| b[(row, c)]).unwrap_or(0.0);
+                                let a = dense(i, row, j, c).unwrap_or(0.0);
                                 assert!((a - fd[row]).abs() < 1e-6 * (1.0 + fd[row].abs()), "{arr:?} {scheme:?} cell {i} var {j}.{c} row {row}: {a} vs {}", fd[row]);
                             }
                         }
