@@ -750,6 +750,7 @@ impl Case {
                 let channel = |(a, d): (Option<f64>, Option<f64>)| Channel {
                     flow_area_m2: a,
                     hydraulic_diameter_m: d,
+                    volume_per_length_m2: a,
                     ..Channel::duct(1.0, 1.0, *area_per_length, Channel::annulus_laminar_nusselt(1.0), l)
                 };
                 let wall = Wall::Plane { thickness_m: *thickness, conductivity_w_mk: *k, area_per_length_m: *area_per_length };
@@ -760,10 +761,15 @@ impl Case {
                 let tubes_per_length = *tubes_per_row as f64 * tube_length / bank.longitudinal_pitch_m;
                 let d_o = bank.outer_diameter_m;
                 let circuit_length = bank.rows as f64 * tube_length;
-                let inside = Channel::duct(*circuits as f64 * PI * di * di / 4.0, *di, PI * di * tubes_per_length, NU_TUBE_LAMINAR_T, circuit_length);
+                let inside = Channel {
+                    volume_per_length_m2: Some(PI * di * di / 4.0 * tubes_per_length),
+                    ..Channel::duct(*circuits as f64 * PI * di * di / 4.0, *di, PI * di * tubes_per_length, NU_TUBE_LAMINAR_T, circuit_length)
+                };
                 let outside = Channel {
                     flow_area_m2: Some(bank.frontal_area_m2),
                     hydraulic_diameter_m: Some(d_o),
+                    // Gas between the tubes: the bank's volume less the tubes'.
+                    volume_per_length_m2: Some(*tubes_per_row as f64 * tube_length * (bank.transverse_pitch_m * bank.longitudinal_pitch_m - PI * d_o * d_o / 4.0) / bank.longitudinal_pitch_m),
                     ..Channel::duct(1.0, 1.0, PI * d_o * tubes_per_length, NU_TUBE_LAMINAR_T, l)
                 };
                 let wall = Wall::Tube { inner_diameter_m: *di, outer_diameter_m: d_o, conductivity_w_mk: *k, tube_length_per_length: tubes_per_length };
@@ -797,6 +803,8 @@ fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> St
         },
         FilmSpec::Compact { surface, hydraulic_diameter_m, free_flow_area_m2, area_per_length_m } => {
             channel.flow_area_m2 = Some(*free_flow_area_m2);
+            // Compact passages: void volume ≈ free-flow area × length (σ-based estimate).
+            channel.volume_per_length_m2 = Some(*free_flow_area_m2);
             channel.hydraulic_diameter_m = Some(*hydraulic_diameter_m);
             channel.heat_diameter_m = None;
             channel.area_per_length_m = *area_per_length_m;

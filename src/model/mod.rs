@@ -79,7 +79,11 @@ impl Stream {
             fluid: &*self.fluid,
             heated,
         };
-        (props, self.film.film(&input))
+        let mut film = self.film.film(&input);
+        // A film coefficient of zero (no heat transfer, or a correlation at zero flow) would
+        // make the resistance infinite; a floor far below any real value keeps it finite.
+        film.h = film.h.max(1e-12);
+        (props, film)
     }
 
     /// Pressure drop across a cell of length `dx_m` (Pa, positive in the flow direction)

@@ -22,6 +22,13 @@ impl Banded {
         Self { n, kl, ku, width, data: vec![0.0; n * width], pivots: vec![0; n] }
     }
 
+    /// Multiply every entry by `s`.
+    pub fn scale(&mut self, s: f64) {
+        for v in self.data.iter_mut() {
+            *v *= s;
+        }
+    }
+
     /// Reset to zero, keeping the allocation.
     pub fn clear(&mut self) {
         self.data.fill(0.0);

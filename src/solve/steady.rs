@@ -188,6 +188,19 @@ impl Jacobian {
         }
     }
 
+    /// The matrix multiplied by `s`.
+    pub(crate) fn scaled(mut self, s: f64) -> Self {
+        match &mut self {
+            Jacobian::Tri(m) => {
+                for b in m.lower.iter_mut().chain(m.diag.iter_mut()).chain(m.upper.iter_mut()) {
+                    *b *= s;
+                }
+            }
+            Jacobian::Band(m) => m.scale(s),
+        }
+        self
+    }
+
     /// Add `v` on the diagonal of cell `i`, component `comp` (storage terms).
     pub(crate) fn add_diagonal(&mut self, i: usize, comp: usize, v: f64) {
         self.add(i, comp, 0, comp, v);

@@ -30,6 +30,9 @@ pub struct Channel {
     pub flow_length_m: f64,
     /// Absolute wall roughness, m.
     pub roughness_m: f64,
+    /// Fluid volume per metre of exchanger length, m³/m (the storage of the transient);
+    /// None when unknown (a fixed-film plane wall without flow geometry).
+    pub volume_per_length_m2: Option<f64>,
     /// Heat-transfer area per metre of exchanger length on this stream's face of the wall, m²/m.
     pub area_per_length_m: f64,
     /// Fully developed laminar Nusselt number for this channel shape, heated on the wall
@@ -46,6 +49,7 @@ impl Channel {
             heat_diameter_m: None,
             flow_length_m: 1.0,
             roughness_m: 0.0,
+            volume_per_length_m2: None,
             area_per_length_m,
             laminar_nusselt: NU_TUBE_LAMINAR_T,
         }
@@ -60,6 +64,7 @@ impl Channel {
             heat_diameter_m: None,
             flow_length_m,
             roughness_m: 0.0,
+            volume_per_length_m2: Some(flow_area_m2),
             area_per_length_m,
             laminar_nusselt,
         }

@@ -27,6 +27,17 @@ pub enum Wall {
 }
 
 impl Wall {
+    /// Metal cross-section per metre of exchanger length, m² (its heat capacity per metre is
+    /// this × density × specific heat).
+    pub fn cross_section_m2(&self) -> f64 {
+        match *self {
+            Wall::Tube { inner_diameter_m, outer_diameter_m, tube_length_per_length, .. } => {
+                std::f64::consts::PI / 4.0 * (outer_diameter_m.powi(2) - inner_diameter_m.powi(2)) * tube_length_per_length
+            }
+            Wall::Plane { thickness_m, area_per_length_m, .. } => thickness_m * area_per_length_m,
+        }
+    }
+
     /// Conduction resistance of one metre of wall, K·m/W (divide by a cell's length for
     /// the cell's resistance in K/W).
     pub fn resistance_per_length(&self) -> f64 {
