@@ -546,14 +546,44 @@ pub fn simulate(
     Ok(run)
 }
 
-/// ode_solvers wrapper around the model.
+/// ode_solvers wrapper around the model. Its error control uses one absolute tolerance for
+/// every component, so the fluid enthalpies are scaled by a reference cp per stream into
+/// kelvin-like units, the same units as the wall temperatures.
 struct OdeSystem<'a, 'b> {
     model: &'b Model<'a>,
+    /// 1/cp_ref of the hot and cold fluids, kg·K/J.
+    scale: [f64; 2],
+}
+
+impl OdeSystem<'_, '_> {
+    fn to_model(&self, z: &DVector<f64>) -> DVector<f64> {
+        let n = self.model.n;
+        let mut y = z.clone();
+        for i in 0..n {
+            y[i] /= self.scale[0];
+            y[n + i] /= self.scale[1];
+        }
+        y
+    }
+    fn from_model(&self, y: &DVector<f64>) -> DVector<f64> {
+        let n = self.model.n;
+        let mut z = y.clone();
+        for i in 0..n {
+            z[i] *= self.scale[0];
+            z[n + i] *= self.scale[1];
+        }
+        z
+    }
 }
 
 impl ode_solvers::System<f64, DVector<f64>> for OdeSystem<'_, '_> {
-    fn system(&self, t: f64, y: &DVector<f64>, dy: &mut DVector<f64>) {
-        self.model.derivative(t, y, dy);
+    fn system(&self, t: f64, z: &DVector<f64>, dz: &mut DVector<f64>) {
+        let n = self.model.n;
+        self.model.derivative(t, &self.to_model(z), dz);
+        for i in 0..n {
+            dz[i] *= self.scale[0];
+            dz[n + i] *= self.scale[1];
+        }
     }
 }
 
@@ -566,17 +596,20 @@ fn explicit_segment(
 ) -> Result<(DVector<f64>, ode_solvers::dop_shared::Stats), TransientError> {
     // Sparse output (the state at every accepted step; the last is the segment end): the
     // dense-output mode did not give us the segment end state in this use.
-    // Tolerances act on enthalpy states: scale the temperature tolerance by a typical cp.
-    let cp = model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp.min(model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp);
-    let atol = settings.atol_k * cp.min(1.0e3);
+    let scale = [
+        1.0 / model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp,
+        1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp,
+    ];
+    let system = OdeSystem { model, scale };
+    let z0 = system.from_model(y0);
     let mut stepper = ode_solvers::Dopri5::from_param(
-        OdeSystem { model },
+        OdeSystem { model, scale },
         t0,
         t1,
         t1 - t0,
-        y0.clone(),
+        z0,
         settings.rtol,
-        atol,
+        settings.atol_k,
         0.9,
         0.04,
         0.2,
@@ -588,7 +621,7 @@ fn explicit_segment(
         ode_solvers::dop_shared::OutputType::Sparse,
     );
     let stats = stepper.integrate().map_err(|e| TransientError::Stalled { integrator: "explicit", time_s: t0, reason: format!("{e:?}") })?;
-    let y = stepper.y_out().last().cloned().ok_or_else(|| TransientError::Stalled {
+    let y = stepper.y_out().last().map(|z| system.to_model(z)).ok_or_else(|| TransientError::Stalled {
         integrator: "explicit",
         time_s: t0,
         reason: "no output".into(),
