@@ -17,6 +17,7 @@ pub const EXIT_HELP: &str = "Exit codes: 0 success · 2 command-line usage error
         "  hxgrid run cases/water-cooler.toml            solve; results in output/<case name>/\n",
         "  hxgrid run my.toml --out results/my-run       choose the results folder\n",
         "  hxgrid run my.toml --grid-study 4             also solve at N, 2N, 4N, 8N cells\n",
+        "  hxgrid simulate cases/water-cooler-startup.toml   transient: cold start and a pump trip\n",
         "  hxgrid check my.toml                          validate only\n",
         "  hxgrid new my.toml                            write a commented starter case\n",
         "  hxgrid fluids                                 list the fluids a case can name\n",
@@ -46,6 +47,18 @@ pub enum Command {
         #[arg(long, value_name = "LEVELS", value_parser = clap::value_parser!(u32).range(2..=12))]
         grid_study: Option<u32>,
         /// Print nothing but errors.
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Run the case's [transient] scenario (start-up, flow or temperature upsets) and write
+    /// the time series, profile snapshots, plots and a summary.
+    Simulate {
+        /// Case file (TOML) with a [transient] section.
+        case: PathBuf,
+        /// Results folder (default: output/<case name>-transient).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Print nothing but errors (no progress bar).
         #[arg(long, short)]
         quiet: bool,
     },

@@ -12,6 +12,7 @@ pub mod lumped;
 pub mod model;
 pub mod output;
 pub mod results;
+pub mod scenario;
 pub mod solve;
 pub mod study;
 pub mod transfer;

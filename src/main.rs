@@ -20,6 +20,7 @@ fn main() -> ExitCode {
     let args = Cli::parse();
     match args.command {
         Command::Run { case, out, grid_study, quiet } => run(&case, out, grid_study.map(|g| g as usize), quiet),
+        Command::Simulate { case, out, quiet } => simulate(&case, out, quiet),
         Command::Check { case } => check(&case),
         Command::New { path } => new_case(&path),
         Command::Fluids => {
@@ -193,6 +194,103 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, quiet: bool
             ExitCode::from(EXIT_OUTPUT)
         }
     }
+}
+
+/// A progress bar on a terminal; nothing otherwise.
+struct Bar(Option<indicatif::ProgressBar>);
+
+impl hxgrid::solve::transient::TransientObserver for Bar {
+    fn progress(&mut self, t: f64, t_end: f64) {
+        if let Some(bar) = &self.0 {
+            bar.set_position((1000.0 * t / t_end) as u64);
+        }
+    }
+}
+
+fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
+    use std::io::IsTerminal;
+    let case = match load(path) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    print_warnings(&case);
+    let Some(spec) = &case.transient else {
+        eprintln!(
+            "error: {} has no [transient] section: add one (duration_s, wall_density_kg_m3, wall_specific_heat_J_kgK, and optional schedules; see README) or use `hxgrid run` for the steady state",
+            path.display()
+        );
+        return ExitCode::from(EXIT_INPUT);
+    };
+    let exchanger = case.build();
+    let settings = spec.settings_for(&exchanger);
+    let inputs = spec.inputs(&exchanger);
+    let bar = (!quiet && std::io::stderr().is_terminal()).then(|| {
+        let b = indicatif::ProgressBar::new(1000);
+        b.set_style(
+            indicatif::ProgressStyle::with_template("{spinner} simulated {percent:>3}% [{bar:40}] elapsed {elapsed_precise}, left ~{eta}")
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b
+    });
+    let mut observer = Bar(bar);
+    let result = hxgrid::scenario::run(&case.name, &exchanger, &inputs, &settings, spec.response_from_s, &mut observer);
+    if let Some(b) = &observer.0 {
+        b.finish_and_clear();
+    }
+    let report = match result {
+        Ok(r) => r,
+        Err(e) => {
+            eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
+            return ExitCode::from(EXIT_SOLVER);
+        }
+    };
+    let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-transient", case.name)));
+    match hxgrid::output::write_transient(&report, &dir) {
+        Ok(files) => {
+            if !quiet {
+                print_transient(&report);
+                println!("\nwrote:");
+                for f in files {
+                    println!("  {}", f.display());
+                }
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(EXIT_OUTPUT)
+        }
+    }
+}
+
+fn print_transient(r: &hxgrid::scenario::TransientReport) {
+    println!(
+        "\n{} — transient, {} s simulated, {} cells, {} scheme, {}",
+        r.case, r.duration_s, r.cells, r.scheme, r.integrator
+    );
+    println!("  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
+    let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
+    println!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
+    for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {
+        println!(
+            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16.2e}",
+            name,
+            o.initial_C,
+            o.final_C,
+            f(o.settling_63_s),
+            f(o.settling_95_s),
+            f(o.settling_99_s),
+            o.overshoot_percent,
+            o.difference_from_steady_K
+        );
+    }
+    println!("\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
+    println!("energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
+    println!(
+        "steps {} (rejected {}), Jacobians {}, right-hand sides {}",
+        r.stats.steps, r.stats.rejected_steps, r.stats.jacobian_evaluations, r.stats.rhs_evaluations
+    );
+    println!("\nCaution: {}", r.caution);
 }
 
 fn print_report(r: &SteadyReport) {

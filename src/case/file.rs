@@ -19,6 +19,70 @@ pub struct CaseFile {
     pub cold: StreamFile,
     #[serde(default)]
     pub solver: SolverFile,
+    pub transient: Option<TransientFile>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum IntegratorName {
+    Auto,
+    Explicit,
+    Implicit,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum InitialName {
+    Steady,
+    Uniform,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum SignalKind {
+    Step,
+    Ramp,
+    Table,
+}
+
+/// A time schedule for an inlet temperature or a mass flow. Before it starts, the value is
+/// the stream's own value from the case.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SignalFile {
+    pub kind: SignalKind,
+    /// step: when
+    pub time_s: Option<f64>,
+    /// ramp: start and end
+    pub start_s: Option<f64>,
+    pub end_s: Option<f64>,
+    /// step / ramp: the new value
+    pub to: Option<f64>,
+    /// table: times and values (piecewise linear)
+    pub times_s: Option<Vec<f64>>,
+    pub values: Option<Vec<f64>>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TransientFile {
+    pub duration_s: f64,
+    pub output_interval_s: Option<f64>,
+    pub integrator: Option<IntegratorName>,
+    /// Absolute tolerance on temperatures, K.
+    pub tolerance_K: Option<f64>,
+    pub initial: Option<InitialName>,
+    pub initial_temperature_C: Option<f64>,
+    pub wall_density_kg_m3: f64,
+    pub wall_specific_heat_J_kgK: f64,
+    pub snapshot_times_s: Option<Vec<f64>>,
+    /// Settling times and overshoot describe the response from this time on (default: 0
+    /// for a uniform start, else the first change of an input).
+    pub response_from_s: Option<f64>,
+    pub hot_inlet_temperature_C: Option<SignalFile>,
+    pub hot_mass_flow_kg_s: Option<SignalFile>,
+    pub cold_inlet_temperature_C: Option<SignalFile>,
+    pub cold_mass_flow_kg_s: Option<SignalFile>,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]

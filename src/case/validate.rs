@@ -5,6 +5,7 @@ use super::file::*;
 use crate::fluid::library::{self, FluidChoice};
 use crate::fluid::Props;
 use crate::model::{Arrangement, Exchanger, Stream};
+use crate::solve::transient::{Initial, Inputs, Integrator, Signal, TransientSettings};
 use crate::solve::SteadySettings;
 use crate::transfer::{
     Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall,
@@ -189,8 +190,48 @@ pub struct Case {
     pub solver: SteadySettings,
     /// Spatial scheme.
     pub scheme: crate::model::Scheme,
+    /// Transient scenario, if the case has one.
+    pub transient: Option<TransientSpec>,
     /// Legal but suspicious inputs.
     pub warnings: Vec<String>,
+}
+
+/// A validated transient scenario.
+#[derive(Debug, Clone)]
+pub struct TransientSpec {
+    /// Settings (cells from [solver]); the wall heat capacity is filled in by
+    /// [`TransientSpec::settings_for`].
+    pub settings: TransientSettings,
+    /// Wall density × specific heat, J/(m³·K).
+    pub wall_volumetric_heat_capacity: f64,
+    /// Response metrics start here, s (None: automatic).
+    pub response_from_s: Option<f64>,
+    /// Schedules; None = the stream's constant case value.
+    pub hot_inlet_c: Option<Signal>,
+    /// Hot flow schedule.
+    pub hot_flow_kg_s: Option<Signal>,
+    /// Cold inlet schedule.
+    pub cold_inlet_c: Option<Signal>,
+    /// Cold flow schedule.
+    pub cold_flow_kg_s: Option<Signal>,
+}
+
+impl TransientSpec {
+    /// Settings with the wall heat capacity per metre of this exchanger's wall.
+    pub fn settings_for(&self, ex: &crate::model::Exchanger) -> TransientSettings {
+        TransientSettings { wall_heat_capacity_j_mk: self.wall_volumetric_heat_capacity * ex.wall.cross_section_m2(), ..self.settings.clone() }
+    }
+
+    /// The inputs for an exchanger built from this case.
+    pub fn inputs(&self, ex: &crate::model::Exchanger) -> Inputs {
+        let base = Inputs::constant(ex);
+        Inputs {
+            hot_inlet_c: self.hot_inlet_c.clone().unwrap_or(base.hot_inlet_c),
+            hot_flow_kg_s: self.hot_flow_kg_s.clone().unwrap_or(base.hot_flow_kg_s),
+            cold_inlet_c: self.cold_inlet_c.clone().unwrap_or(base.cold_inlet_c),
+            cold_flow_kg_s: self.cold_flow_kg_s.clone().unwrap_or(base.cold_flow_kg_s),
+        }
+    }
 }
 
 /// Read and validate a case file.
@@ -293,10 +334,12 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     if !(1..=10_000).contains(&max_iterations) {
         c.fail("solver.max_iterations", format!("{max_iterations} is not valid: use a whole number from 1 to 10 000"));
     }
+    let transient = f.transient.as_ref().map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize));
     if !c.problems.is_empty() {
         return Err(c.problems);
     }
     Ok(Case {
+        transient,
         name: f.name.clone().unwrap_or_else(|| default_name.to_string()),
         arrangement: f.arrangement,
         length_m,
@@ -311,6 +354,138 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         },
         warnings: c.warnings,
     })
+}
+
+fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64, positive_only: bool) -> Signal {
+    let need = |c: &mut Checker, name: &str, v: Option<f64>| -> f64 {
+        match v {
+            Some(x) if x.is_finite() => x,
+            Some(x) => {
+                c.fail(&format!("{key}.{name}"), format!("{x} is not a finite number"));
+                0.0
+            }
+            None => {
+                c.fail(&format!("{key}.{name}"), format!("is missing: kind = \"{:?}\" needs it", s.kind).to_lowercase());
+                0.0
+            }
+        }
+    };
+    let check_value = |c: &mut Checker, name: &str, v: f64| {
+        if positive_only && v < 0.0 {
+            c.fail(&format!("{key}.{name}"), format!("{v} is not valid: a mass flow cannot be negative (0 stops the flow)"));
+        }
+    };
+    let check_time = |c: &mut Checker, name: &str, t: f64| {
+        if !(0.0..=duration).contains(&t) {
+            c.warnings.push(format!("{key}.{name} = {t} s lies outside the simulated 0 … {duration} s"));
+        }
+    };
+    match s.kind {
+        SignalKind::Step => {
+            let (t, to) = (need(c, "time_s", s.time_s), need(c, "to", s.to));
+            check_time(c, "time_s", t);
+            check_value(c, "to", to);
+            Signal::Step { time_s: t, before, after: to }
+        }
+        SignalKind::Ramp => {
+            let (a, b, to) = (need(c, "start_s", s.start_s), need(c, "end_s", s.end_s), need(c, "to", s.to));
+            if b <= a {
+                c.fail(&format!("{key}.end_s"), format!("{b} s must be after start_s = {a} s"));
+            }
+            check_value(c, "to", to);
+            Signal::Ramp { start_s: a, end_s: b.max(a + 1e-9), from: before, to }
+        }
+        SignalKind::Table => {
+            let (times, values) = (s.times_s.clone().unwrap_or_default(), s.values.clone().unwrap_or_default());
+            if times.is_empty() || times.len() != values.len() {
+                c.fail(&format!("{key}.times_s"), format!("times_s ({} entries) and values ({} entries) must be non-empty and of equal length", times.len(), values.len()));
+                return Signal::Constant(before);
+            }
+            if times.windows(2).any(|w| w[1] <= w[0]) || times.iter().chain(&values).any(|v| !v.is_finite()) {
+                c.fail(&format!("{key}.times_s"), "times must be finite and strictly increasing, values finite".into());
+            }
+            for v in &values {
+                check_value(c, "values", *v);
+            }
+            Signal::Table(times.into_iter().zip(values).collect())
+        }
+    }
+}
+
+fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geometry, cells: usize) -> TransientSpec {
+    let duration = c.positive("transient.duration_s", t.duration_s, "s");
+    let interval = t.output_interval_s.unwrap_or((duration / 1000.0).max(1e-6));
+    if !(interval > 0.0 && interval <= duration) {
+        c.fail("transient.output_interval_s", format!("{interval} s is not valid: use a positive interval no longer than duration_s = {duration} s"));
+    }
+    if duration / interval > 1e6 {
+        c.fail("transient.output_interval_s", format!("{interval} s gives more than a million output rows over {duration} s: use a longer interval"));
+    }
+    let tolerance = t.tolerance_K.unwrap_or(1e-4);
+    if !(tolerance > 0.0 && tolerance < 10.0) {
+        c.fail("transient.tolerance_K", format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-4"));
+    }
+    let initial = match (t.initial, t.initial_temperature_C) {
+        (None | Some(InitialName::Steady), None) => Initial::Steady,
+        (None | Some(InitialName::Steady), Some(_)) => {
+            c.fail("transient.initial_temperature_C", "is only used with initial = \"uniform\": remove it, or set initial = \"uniform\"".into());
+            Initial::Steady
+        }
+        (Some(InitialName::Uniform), Some(v)) if v.is_finite() => Initial::Uniform(v),
+        (Some(InitialName::Uniform), _) => {
+            c.fail("transient.initial_temperature_C", "is missing: initial = \"uniform\" needs the starting temperature of fluids and wall in °C".into());
+            Initial::Uniform(20.0)
+        }
+    };
+    let rho = c.positive("transient.wall_density_kg_m3", t.wall_density_kg_m3, "kg/m³");
+    let cw = c.positive("transient.wall_specific_heat_J_kgK", t.wall_specific_heat_J_kgK, "J/(kg·K)");
+    let integrator = match t.integrator {
+        Some(IntegratorName::Explicit) => Integrator::Explicit,
+        // Auto: implicit. Wall–fluid exchange and short cells make most exchanger
+        // transients stiff; the benchmark shows BDF2 ahead even for coarse liquid cases.
+        None | Some(IntegratorName::Auto) | Some(IntegratorName::Implicit) => Integrator::Implicit,
+    };
+    if let Geometry::PlaneWall { hot, cold, .. } = geometry {
+        for (side, (area, _), film) in [("hot", hot, f.hot.film), ("cold", cold, f.cold.film)] {
+            if area.is_none() && film != FilmName::Compact {
+                c.fail(&format!("geometry.{side}_flow_area_m2"), "is missing: a transient needs each stream's flow area to know how much fluid the exchanger holds".into());
+            }
+        }
+    }
+    let snapshots = t.snapshot_times_s.clone().unwrap_or_else(|| (0..=4).map(|k| k as f64 * duration / 4.0).collect());
+    let mut sig = |name: &str, s: &Option<SignalFile>, before: f64, flow: bool| {
+        s.as_ref().map(|s| signal(c, &format!("transient.{name}"), s, before, duration, flow))
+    };
+    let hot_inlet_c = sig("hot_inlet_temperature_C", &t.hot_inlet_temperature_C, f.hot.inlet_temperature_C, false);
+    let hot_flow_kg_s = sig("hot_mass_flow_kg_s", &t.hot_mass_flow_kg_s, f.hot.mass_flow_kg_s, true);
+    let cold_inlet_c = sig("cold_inlet_temperature_C", &t.cold_inlet_temperature_C, f.cold.inlet_temperature_C, false);
+    let cold_flow_kg_s = sig("cold_mass_flow_kg_s", &t.cold_mass_flow_kg_s, f.cold.mass_flow_kg_s, true);
+    TransientSpec {
+        settings: TransientSettings {
+            cells,
+            duration_s: duration,
+            output_interval_s: interval,
+            integrator,
+            atol_k: tolerance,
+            rtol: 1e-6,
+            max_steps: 5_000_000,
+            initial,
+            wall_heat_capacity_j_mk: 0.0,
+            snapshot_times_s: snapshots,
+        },
+        wall_volumetric_heat_capacity: rho * cw,
+        response_from_s: match t.response_from_s {
+            Some(r) if !(r >= 0.0 && r < duration) => {
+                c.fail("transient.response_from_s", format!("{r} s is not valid: give a time from 0 up to (not including) duration_s = {duration} s"));
+                None
+            }
+            v => v,
+        },
+        hot_inlet_c,
+        hot_flow_kg_s,
+        cold_inlet_c,
+        cold_flow_kg_s,
+    }
 }
 
 /// Keys of `[geometry]` that belong to each kind (anything else given is an error).

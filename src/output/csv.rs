@@ -1,6 +1,7 @@
 //! Profiles as CSV: one row per cell centre, units in the column names.
 
 use crate::results::SteadyReport;
+use crate::scenario::TransientReport;
 use std::fmt::Write;
 
 /// Column names, in order.
@@ -63,6 +64,52 @@ pub fn profiles(report: &SteadyReport) -> String {
             opt(r.p_hot_pa),
             opt(r.p_cold_pa)
         );
+    }
+    s
+}
+
+/// Time series: one row per output time.
+pub fn timeseries(report: &TransientReport) -> String {
+    let mut s = String::from(
+        "time_s,hot_inlet_C,cold_inlet_C,hot_flow_kg_s,cold_flow_kg_s,hot_outlet_C,cold_outlet_C,hot_duty_W,cold_duty_W,fluid_energy_J,wall_energy_J,max_wall_C,max_wall_rate_K_s,net_inflow_J,hot_heat_J\n",
+    );
+    for r in &report.samples {
+        let v = [
+            r.time_s,
+            r.hot_inlet_C,
+            r.cold_inlet_C,
+            r.hot_flow_kg_s,
+            r.cold_flow_kg_s,
+            r.hot_outlet_C,
+            r.cold_outlet_C,
+            r.hot_duty_W,
+            r.cold_duty_W,
+            r.fluid_energy_J,
+            r.wall_energy_J,
+            r.max_wall_C,
+            r.max_wall_rate_K_s,
+            r.net_inflow_J,
+            r.hot_heat_J,
+        ];
+        let _ = writeln!(s, "{}", v.iter().map(|x| format!("{x:.10e}")).collect::<Vec<_>>().join(","));
+    }
+    s
+}
+
+/// Profile snapshots: one row per (time, face). Wall temperatures live at cell centres;
+/// at a face the mean of the two neighbouring cells is written (the end cell at the ends).
+pub fn snapshots(report: &TransientReport) -> String {
+    let mut s = String::from("time_s,x_m,hot_C,cold_C,wall_C\n");
+    for snap in &report.snapshots {
+        let n = snap.wall_c.len();
+        for (j, x) in report.faces_m.iter().enumerate() {
+            let wall = match j {
+                0 => snap.wall_c[0],
+                j if j == n => snap.wall_c[n - 1],
+                j => 0.5 * (snap.wall_c[j - 1] + snap.wall_c[j]),
+            };
+            let _ = writeln!(s, "{:.6e},{:.6e},{:.10e},{:.10e},{:.10e}", snap.time_s, x, snap.hot_faces_c[j], snap.cold_faces_c[j], wall);
+        }
     }
     s
 }

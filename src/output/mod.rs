@@ -8,6 +8,7 @@ mod csv;
 mod svg;
 
 use crate::results::SteadyReport;
+use crate::scenario::TransientReport;
 use std::path::{Path, PathBuf};
 
 /// Why results could not be written.
@@ -46,20 +47,7 @@ pub const STEADY_FILES: [&str; 5] = ["summary.json", "profiles.csv", "temperatur
 
 /// Check every number in the report is finite.
 pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
-    let json = serde_json::to_value(report).expect("report serialises");
-    fn walk(v: &serde_json::Value, path: &str) -> Result<(), OutputError> {
-        match v {
-            // serde_json writes non-finite floats as null; the optional fields that may
-            // legitimately be null are re-checked below from the source values.
-            serde_json::Value::Object(m) => m.iter().try_for_each(|(k, v)| walk(v, &format!("{path}.{k}"))),
-            serde_json::Value::Array(a) => a.iter().enumerate().try_for_each(|(i, v)| walk(v, &format!("{path}[{i}]"))),
-            serde_json::Value::Number(n) if !n.as_f64().is_some_and(f64::is_finite) => {
-                Err(OutputError::NonFinite { what: path.to_string() })
-            }
-            _ => Ok(()),
-        }
-    }
-    walk(&json, "summary")?;
+    check_json(&serde_json::to_value(report).expect("report serialises"), "summary")?;
     let scalars = [
         ("duty_W", report.duty_W),
         ("hot_outlet_C", report.hot_outlet_C),
@@ -80,8 +68,7 @@ pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
         }
     }
     for (i, row) in report.profile.iter().enumerate() {
-        let vals = serde_json::to_value(row).expect("row serialises");
-        walk(&vals, &format!("profile[{i}]"))?;
+        check_json(&serde_json::to_value(row).expect("row serialises"), &format!("profile[{i}]"))?;
         for v in [row.hot_c, row.cold_c, row.wall_c, row.heat_flux_w_m2, row.u_w_m2k] {
             if !v.is_finite() {
                 return Err(OutputError::NonFinite { what: format!("profile row {i}") });
@@ -95,6 +82,47 @@ pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
 /// only after the new files are complete). Returns the paths written.
 pub fn write_steady(report: &SteadyReport, dir: &Path) -> Result<Vec<PathBuf>, OutputError> {
     check_finite(report)?;
+    write_folder(dir, |staging| write_all(report, staging))?;
+    Ok(STEADY_FILES.iter().map(|f| dir.join(f)).collect())
+}
+
+/// Files a transient run writes.
+pub const TRANSIENT_FILES: [&str; 5] = ["transient.json", "timeseries.csv", "snapshots.csv", "response.svg", "snapshots.svg"];
+
+/// Write a transient report into `dir`, with the same all-or-nothing replacement.
+pub fn write_transient(report: &TransientReport, dir: &Path) -> Result<Vec<PathBuf>, OutputError> {
+    let json = serde_json::to_value(report).expect("report serialises");
+    check_json(&json, "transient")?;
+    for (i, s) in report.samples.iter().enumerate() {
+        check_json(&serde_json::to_value(s).expect("sample serialises"), &format!("timeseries[{i}]"))?;
+    }
+    write_folder(dir, |staging| {
+        let path = staging.join("transient.json");
+        std::fs::write(&path, serde_json::to_string_pretty(report).expect("report serialises") + "\n").map_err(io(&path))?;
+        let path = staging.join("timeseries.csv");
+        std::fs::write(&path, csv::timeseries(report)).map_err(io(&path))?;
+        let path = staging.join("snapshots.csv");
+        std::fs::write(&path, csv::snapshots(report)).map_err(io(&path))?;
+        svg::response(report, &staging.join("response.svg"))?;
+        svg::snapshots(report, &staging.join("snapshots.svg"))?;
+        Ok(())
+    })?;
+    Ok(TRANSIENT_FILES.iter().map(|f| dir.join(f)).collect())
+}
+
+/// Reject any non-finite number in a serialised value (serde_json writes them as null).
+fn check_json(v: &serde_json::Value, path: &str) -> Result<(), OutputError> {
+    match v {
+        serde_json::Value::Object(m) => m.iter().try_for_each(|(k, v)| check_json(v, &format!("{path}.{k}"))),
+        serde_json::Value::Array(a) => a.iter().enumerate().try_for_each(|(i, v)| check_json(v, &format!("{path}[{i}]"))),
+        serde_json::Value::Number(n) if !n.as_f64().is_some_and(f64::is_finite) => Err(OutputError::NonFinite { what: path.to_string() }),
+        _ => Ok(()),
+    }
+}
+
+/// Write into a staging folder beside `dir`, then swap it into place; on any failure the
+/// staging folder is removed and `dir` is left as it was.
+fn write_folder(dir: &Path, fill: impl FnOnce(&Path) -> Result<(), OutputError>) -> Result<(), OutputError> {
     let parent = dir.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
     std::fs::create_dir_all(parent).map_err(io(parent))?;
     let leaf = dir.file_name().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "results".into());
@@ -103,8 +131,7 @@ pub fn write_steady(report: &SteadyReport, dir: &Path) -> Result<Vec<PathBuf>, O
         std::fs::remove_dir_all(&staging).map_err(io(&staging))?;
     }
     std::fs::create_dir_all(&staging).map_err(io(&staging))?;
-    let result = write_all(report, &staging);
-    if let Err(e) = result {
+    if let Err(e) = fill(&staging) {
         let _ = std::fs::remove_dir_all(&staging);
         return Err(e);
     }
@@ -122,7 +149,7 @@ pub fn write_steady(report: &SteadyReport, dir: &Path) -> Result<Vec<PathBuf>, O
     if old.exists() {
         std::fs::remove_dir_all(&old).map_err(io(&old))?;
     }
-    Ok(STEADY_FILES.iter().map(|f| dir.join(f)).collect())
+    Ok(())
 }
 
 fn write_all(report: &SteadyReport, dir: &Path) -> Result<(), OutputError> {

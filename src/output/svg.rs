@@ -2,6 +2,7 @@
 
 use super::OutputError;
 use crate::results::SteadyReport;
+use crate::scenario::TransientReport;
 use plotters::prelude::*;
 use std::path::Path;
 
@@ -17,6 +18,9 @@ fn plot_err(path: &Path) -> impl Fn(String) -> OutputError + '_ {
 /// Padded range of a set of values.
 fn span(values: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = values.fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| (a.min(v), b.max(v)));
+    if lo > hi {
+        return (0.0, 1.0);
+    }
     let pad = ((hi - lo) * 0.06).max(1e-6 * hi.abs().max(1.0));
     (lo - pad, hi + pad)
 }
@@ -185,5 +189,137 @@ pub fn pressure(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
             .draw()
             .map_err(|x| e(x.to_string()))?;
     }
+    root.present().map_err(|x| e(x.to_string()))
+}
+
+/// Outlet and inlet temperatures against time (upper panel) and mass flows (lower panel).
+pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, (SIZE.0, SIZE.1 + 200)).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let (upper, lower) = root.split_vertically(SIZE.1 - 20);
+    let t_end = r.duration_s.max(1e-9);
+    let s = &r.samples;
+    let lines: [(&str, RGBColor, bool, Vec<(f64, f64)>); 4] = [
+        ("hot outlet", HOT, false, s.iter().map(|p| (p.time_s, p.hot_outlet_C)).collect()),
+        ("hot inlet (schedule)", HOT, true, s.iter().map(|p| (p.time_s, p.hot_inlet_C)).collect()),
+        ("cold outlet", COLD, false, s.iter().map(|p| (p.time_s, p.cold_outlet_C)).collect()),
+        ("cold inlet (schedule)", COLD, true, s.iter().map(|p| (p.time_s, p.cold_inlet_C)).collect()),
+    ];
+    let (lo, hi) = span(lines.iter().flat_map(|l| l.3.iter().map(|p| p.1)));
+    let mut chart = ChartBuilder::on(&upper)
+        .caption(format!("{}: outlet response ({} cells, {} scheme)", r.case, r.cells, r.scheme), ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(45)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..t_end, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart
+        .configure_mesh()
+        .x_desc("time, t (s)")
+        .y_desc("temperature (°C)")
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    for (label, color, dashed, pts) in lines {
+        let style = color.stroke_width(if dashed { 1 } else { 2 });
+        let anno = if dashed {
+            chart.draw_series(DashedLineSeries::new(pts, 6, 4, style)).map_err(|x| e(x.to_string()))?
+        } else {
+            chart.draw_series(LineSeries::new(pts, style)).map_err(|x| e(x.to_string()))?
+        };
+        anno.label(label).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], style));
+    }
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .position(SeriesLabelPosition::UpperRight)
+        .label_font(("sans-serif", 13))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    let flows: [(&str, RGBColor, Vec<(f64, f64)>); 2] = [
+        ("hot mass flow", HOT, s.iter().map(|p| (p.time_s, p.hot_flow_kg_s)).collect()),
+        ("cold mass flow", COLD, s.iter().map(|p| (p.time_s, p.cold_flow_kg_s)).collect()),
+    ];
+    let (lo, hi) = span(flows.iter().flat_map(|l| l.2.iter().map(|p| p.1)).chain([0.0]));
+    let mut chart = ChartBuilder::on(&lower)
+        .margin(12)
+        .x_label_area_size(45)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..t_end, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart
+        .configure_mesh()
+        .x_desc("time, t (s)")
+        .y_desc("mass flow (kg/s)")
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    for (label, color, pts) in flows {
+        chart
+            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label(label)
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+    }
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .position(SeriesLabelPosition::UpperRight)
+        .label_font(("sans-serif", 13))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    root.present().map_err(|x| e(x.to_string()))
+}
+
+/// Hot and cold temperature profiles at the snapshot times, as a family of curves (later
+/// times darker).
+pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, SIZE).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let length = r.faces_m.last().copied().unwrap_or(1.0).max(1e-9);
+    let (lo, hi) = span(r.snapshots.iter().flat_map(|s| s.hot_faces_c.iter().chain(&s.cold_faces_c).copied()));
+    let mut chart = ChartBuilder::on(&root)
+        .caption(format!("{}: temperature profiles at chosen times", r.case), ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(50)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..length, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart
+        .configure_mesh()
+        .x_desc("position along the hot stream's flow, x (m)")
+        .y_desc("temperature (°C)")
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
+    let k = r.snapshots.len().max(1) as f64;
+    for (i, snap) in r.snapshots.iter().enumerate() {
+        let shade = 0.3 + 0.7 * (i as f64 + 1.0) / k;
+        let hot = RGBColor((200.0 * shade + 55.0 * (1.0 - shade)) as u8, (40.0 * shade + 200.0 * (1.0 - shade)) as u8, (30.0 * shade + 200.0 * (1.0 - shade)) as u8);
+        let cold = RGBColor((30.0 * shade + 200.0 * (1.0 - shade)) as u8, (90.0 * shade + 210.0 * (1.0 - shade)) as u8, (200.0 * shade + 240.0 * (1.0 - shade)) as u8);
+        let t = snap.time_s;
+        chart
+            .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()), hot.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label(format!("hot, t = {t:.4} s"))
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], hot.stroke_width(2)));
+        chart
+            .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()), cold.stroke_width(2)))
+            .map_err(|x| e(x.to_string()))?
+            .label(format!("cold, t = {t:.4} s"))
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], cold.stroke_width(2)));
+    }
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .position(SeriesLabelPosition::UpperRight)
+        .label_font(("sans-serif", 12))
+        .draw()
+        .map_err(|x| e(x.to_string()))?;
     root.present().map_err(|x| e(x.to_string()))
 }
