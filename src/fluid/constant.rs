@@ -24,6 +24,9 @@ impl Fluid for ConstantFluid {
     fn range(&self) -> RangeLimit {
         RangeLimit { min_c: -273.15, max_c: 1.0e4, reason: "constant properties have no range of their own".into() }
     }
+    fn bounds(&self) -> (f64, f64) {
+        (-273.15, 1.0e4)
+    }
     fn props(&self, _t_c: f64) -> Props {
         self.props
     }

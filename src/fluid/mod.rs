@@ -57,6 +57,11 @@ pub trait Fluid: Send + Sync + Debug {
     fn name(&self) -> String;
     /// Valid temperature range at this pressure, °C, with the reason for it.
     fn range(&self) -> RangeLimit;
+    /// The range's ends only, °C (cheap: hot loops call this, not [`Fluid::range`]).
+    fn bounds(&self) -> (f64, f64) {
+        let r = self.range();
+        (r.min_c, r.max_c)
+    }
     /// Properties at temperature `t_c` (°C); clamped to the valid range.
     fn props(&self, t_c: f64) -> Props;
     /// Specific enthalpy, J/kg (fixed but arbitrary reference). Outside the valid range it
@@ -73,9 +78,11 @@ pub trait Fluid: Send + Sync + Debug {
     /// safeguarded by bisection inside a bracket. Enthalpy is monotone in T for a
     /// single-phase fluid, so the root is unique.
     fn temperature_from_enthalpy(&self, h: f64) -> f64 {
-        let r = self.range();
-        let (mut lo, mut hi) = (r.min_c - 1000.0, r.max_c + 1000.0);
-        let mut t = 0.5 * (r.min_c + r.max_c);
+        let (min_c, max_c) = self.bounds();
+        let (mut lo, mut hi) = (min_c - 1000.0, max_c + 1000.0);
+        // Start from the straight line between the range's end enthalpies.
+        let (h0, h1) = (self.enthalpy(min_c), self.enthalpy(max_c));
+        let mut t = if h1 > h0 { min_c + (max_c - min_c) * (h - h0) / (h1 - h0) } else { 0.5 * (min_c + max_c) };
         for _ in 0..100 {
             let f = self.enthalpy(t) - h;
             if f > 0.0 {

@@ -328,6 +328,9 @@ impl Fluid for TableFluid {
             reason: format!("the property table {} covers only this range; hxgrid does not extrapolate", self.origin),
         }
     }
+    fn bounds(&self) -> (f64, f64) {
+        (self.t[0], self.t[self.t.len() - 1])
+    }
     fn props(&self, t_c: f64) -> Props {
         let (seg, u) = self.locate(t_c);
         let density = match self.molar_mass {

@@ -111,6 +111,9 @@ impl Fluid for Water {
         };
         RangeLimit { min_c: self.table.t_min(), max_c: self.table.t_max(), reason }
     }
+    fn bounds(&self) -> (f64, f64) {
+        (self.table.t_min(), self.table.t_max())
+    }
     fn props(&self, t_c: f64) -> Props {
         self.table.props(t_c)
     }

@@ -305,12 +305,12 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         chart
             .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()), hot.stroke_width(2)))
             .map_err(|x| e(x.to_string()))?
-            .label(format!("hot, t = {t:.4} s"))
+            .label(format!("hot, t = {t} s"))
             .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], hot.stroke_width(2)));
         chart
             .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()), cold.stroke_width(2)))
             .map_err(|x| e(x.to_string()))?
-            .label(format!("cold, t = {t:.4} s"))
+            .label(format!("cold, t = {t} s"))
             .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], cold.stroke_width(2)));
     }
     chart

@@ -425,7 +425,7 @@ pub enum TransientError {
     #[error(transparent)]
     Solve(#[from] SolveError),
     /// The integrator could not advance.
-    #[error("the {integrator} integrator stopped at t = {time_s:.4} s: {reason}. Try the implicit integrator, looser tolerances, or fewer cells")]
+    #[error("the {integrator} integrator stopped in the step range starting at t = {time_s:.4} s: {reason}. Try the implicit integrator, looser tolerances, or fewer cells")]
     Stalled {
         /// Which integrator.
         integrator: &'static str,
