@@ -22,6 +22,10 @@ fn run(args: &[&str], dir: &Path) -> Output {
     bin().args(args).current_dir(dir).output().unwrap()
 }
 
+fn text_of(o: &Output) -> String {
+    text(o)
+}
+
 fn text(o: &Output) -> String {
     format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
 }
@@ -174,4 +178,40 @@ fn fluids_and_props_commands() {
     let o = run(&["props", "--table", "t.csv"], &dir);
     assert_eq!(o.status.code(), Some(3));
     assert!(text(&o).contains("t.csv, line 3"), "{}", text(&o));
+}
+
+#[test]
+fn simulate_command() {
+    let dir = scratch("simulate");
+    // A short version of the start-up demo.
+    let text = std::fs::read_to_string(root().join("cases/water-cooler-startup.toml"))
+        .unwrap()
+        .replace("duration_s = 1800.0", "duration_s = 120.0")
+        .replace("snapshot_times_s = [0.0, 30.0, 120.0, 600.0, 1100.0, 1800.0]", "snapshot_times_s = [0.0, 60.0, 120.0]")
+        .replace("response_from_s = 1200.0", "response_from_s = 0.0")
+        .replace("cells = 200", "cells = 40");
+    std::fs::write(dir.join("s.toml"), &text).unwrap();
+    let o = run(&["simulate", "s.toml", "--out", "res"], &dir);
+    assert!(o.status.success(), "{}", text_of(&o));
+    for f in ["transient.json", "timeseries.csv", "snapshots.csv", "response.svg", "snapshots.svg"] {
+        assert!(dir.join("res").join(f).exists(), "{f}");
+    }
+    let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(dir.join("res/transient.json")).unwrap()).unwrap();
+    for key in ["settling_63_s", "settling_95_s", "settling_99_s", "overshoot_percent", "difference_from_steady_K", "final_C"] {
+        assert!(summary["hot_outlet"].get(key).is_some(), "{key}");
+    }
+    assert!(summary["energy_closure_relative"].as_f64().unwrap() < 1e-6);
+    let rows = std::fs::read_to_string(dir.join("res/timeseries.csv")).unwrap().lines().count();
+    assert_eq!(rows, 1 + 121, "header + one row per second");
+    // Not a terminal: no progress bar escape codes in the output.
+    assert!(!text_of(&o).contains('\u{1b}'));
+    // A case without [transient] is an input error.
+    let o = run(&["simulate", root().join("cases/water-cooler.toml").to_str().unwrap()], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(text_of(&o).contains("[transient]"));
+    // A bad schedule names its key.
+    std::fs::write(dir.join("bad.toml"), text.replace("times_s = [900.0, 905.0, 1200.0, 1220.0]", "times_s = [900.0, 905.0, 1200.0]")).unwrap();
+    let o = run(&["simulate", "bad.toml"], &dir);
+    assert_eq!(o.status.code(), Some(3));
+    assert!(text_of(&o).contains("transient.cold_mass_flow_kg_s.times_s"), "{}", text_of(&o));
 }
