@@ -47,7 +47,7 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
             Err(e) => return bad(format!("invalid fluid table: {e}")),
         },
         (Some(name), None) => match name.as_str() {
-            "water" => FluidChoice::Water,
+            "water" => FluidChoice::Water(hxgrid::fluid::Water::phase_at(pressure_bar.map(|p| p * 1e5).unwrap_or(101_325.0), from.unwrap_or(20.0))),
             other => match library::builtin_table(other) {
                 Some(t) => FluidChoice::Table(t),
                 None => return bad(format!("\"{other}\" is not a known fluid; `hxgrid fluids` lists them")),

@@ -205,6 +205,8 @@ pub struct StreamFile {
     pub fluid: String,
     /// With fluid = "table": path of the table file, relative to the case file.
     pub table_file: Option<String>,
+    /// With fluid = "water": "liquid" (default) or "vapour".
+    pub phase: Option<String>,
     pub inlet_temperature_C: f64,
     pub mass_flow_kg_s: f64,
     pub pressure_bar_abs: Option<f64>,

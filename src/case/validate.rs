@@ -3,7 +3,7 @@
 
 use super::file::*;
 use crate::fluid::library::{self, FluidChoice};
-use crate::fluid::Props;
+use crate::fluid::{Props, WaterPhase};
 use crate::model::{Arrangement, Exchanger, Stream};
 use crate::solve::transient::{Initial, Inputs, Integrator, Signal, TransientSettings};
 use crate::solve::SteadySettings;
@@ -20,13 +20,18 @@ use std::sync::Arc;
 pub struct Problem {
     /// Key path, e.g. `hot.mass_flow_kg_s`.
     pub key: String,
+    /// Line in the case file, where known.
+    pub line: Option<usize>,
     /// What is wrong and what would be valid.
     pub message: String,
 }
 
 impl std::fmt::Display for Problem {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}: {}", self.key, self.message)
+        match self.line {
+            Some(l) => write!(f, "line {l}: {}: {}", self.key, self.message),
+            None => write!(f, "{}: {}", self.key, self.message),
+        }
     }
 }
 
@@ -249,10 +254,32 @@ pub fn parse_str(text: &str, origin: &str, default_name: &str) -> Result<Case, C
 }
 
 /// As [`parse_str`], with table files relative to `base_dir`.
+///
+/// Order: TOML syntax (line and column); then the file's shape — unknown keys (with the
+/// closest valid key), missing required keys, wrong types, words outside their choices —
+/// all at once with line numbers; then the values. If the only shape problems are unknown
+/// keys, the values are checked too (with those keys set aside) and reported together.
 pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -> Result<Case, CaseError> {
-    let file: CaseFile =
-        toml::from_str(text).map_err(|e| CaseError::Syntax { origin: origin.into(), message: e.to_string() })?;
-    validate(&file, default_name, base_dir).map_err(|problems| CaseError::Invalid { origin: origin.into(), problems })
+    let shape = super::schema::check(text).map_err(|message| CaseError::Syntax { origin: origin.into(), message })?;
+    let invalid = |problems: Vec<Problem>| CaseError::Invalid { origin: origin.into(), problems };
+    if !shape.problems.is_empty() && !shape.only_unknown_keys {
+        return Err(invalid(shape.problems));
+    }
+    let cleaned = if shape.unknown.is_empty() { text.to_string() } else { super::schema::without(text, &shape.unknown) };
+    let file: CaseFile = match toml::from_str(&cleaned) {
+        Ok(f) => f,
+        Err(e) if shape.problems.is_empty() => return Err(CaseError::Syntax { origin: origin.into(), message: e.to_string() }),
+        Err(_) => return Err(invalid(shape.problems)),
+    };
+    let mut problems = shape.problems;
+    match validate(&file, default_name, base_dir) {
+        Ok(case) if problems.is_empty() => Ok(case),
+        Ok(_) => Err(invalid(problems)),
+        Err(more) => {
+            problems.extend(more);
+            Err(invalid(problems))
+        }
+    }
 }
 
 /// Standard atmosphere, Pa: the default stream pressure.
@@ -265,7 +292,7 @@ struct Checker {
 
 impl Checker {
     fn fail(&mut self, key: &str, message: String) {
-        self.problems.push(Problem { key: key.into(), message });
+        self.problems.push(Problem { key: key.into(), line: None, message });
     }
     /// A finite value strictly above zero.
     fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
@@ -816,7 +843,7 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
 }
 
 /// Closest name by edit distance, for "did you mean".
-pub(crate) fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> {
+pub fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> {
     fn distance(a: &str, b: &str) -> usize {
         let (a, b): (Vec<char>, Vec<char>) = (a.chars().collect(), b.chars().collect());
         let mut prev: Vec<usize> = (0..=b.len()).collect();
@@ -830,9 +857,15 @@ pub(crate) fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> 
         }
         prev[b.len()]
     }
+    let w = word.to_lowercase();
+    if w.len() >= 3 {
+        if let Some(o) = options.iter().find(|o| o.to_lowercase().starts_with(&w)) {
+            return Some(o.as_str());
+        }
+    }
     options
         .iter()
-        .map(|o| (distance(&word.to_lowercase(), &o.to_lowercase()), o))
+        .map(|o| (distance(&w, &o.to_lowercase()), o))
         .filter(|(d, o)| *d <= 3.max(o.len() / 3))
         .min_by_key(|(d, _)| *d)
         .map(|(_, o)| o.as_str())
@@ -846,8 +879,14 @@ fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) ->
     if s.table_file.is_some() && s.fluid != "table" {
         c.fail(&key("table_file"), format!("is only used with fluid = \"table\" (fluid is \"{}\"): remove it", s.fluid));
     }
+    if s.phase.is_some() && s.fluid != "water" {
+        c.fail(&key("phase"), format!("is only used with fluid = \"water\" (fluid is \"{}\"): remove it", s.fluid));
+    }
     match s.fluid.as_str() {
-        "water" => Some(FluidChoice::Water),
+        "water" => Some(FluidChoice::Water(match s.phase.as_deref() {
+            Some("vapour") => WaterPhase::Vapour,
+            _ => WaterPhase::Liquid,
+        })),
         "constant" => match &s.properties {
             Some(p) => Some(FluidChoice::Constant(Props {
                 density: c.positive(&key("properties.density_kg_m3"), p.density_kg_m3, "kg/m³"),
@@ -886,6 +925,33 @@ fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) ->
 }
 
 fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f64, inlet_c: f64) {
+    if let FluidChoice::Water(phase) = fluid {
+        if (0.000_611_657e6..=22.064e6).contains(&pressure_pa) && inlet_c.is_finite() {
+            let t_sat = crate::fluid::water::saturation_temperature_c(pressure_pa);
+            let p_sat_bar = crate::fluid::water::saturation_pressure_pa(inlet_c.min(373.9)) * 1e-5;
+            match phase {
+                WaterPhase::Liquid if inlet_c >= t_sat - 0.1 => {
+                    c.fail(
+                        &format!("{side}.pressure_bar_abs"),
+                        format!(
+                            "{:.4} bar is below the saturation pressure of water at the inlet temperature {inlet_c} °C ({p_sat_bar:.4} bar; at {:.4} bar water boils at {t_sat:.2} °C): raise pressure_bar_abs above {p_sat_bar:.3} bar for liquid water, or set phase = \"vapour\" for superheated steam",
+                            pressure_pa * 1e-5,
+                            pressure_pa * 1e-5
+                        ),
+                    );
+                    return;
+                }
+                WaterPhase::Vapour if inlet_c <= t_sat + 0.1 => {
+                    c.fail(
+                        &format!("{side}.inlet_temperature_C"),
+                        format!("{inlet_c} °C is not superheated steam at {:.4} bar (saturation {t_sat:.2} °C): raise the temperature, lower the pressure, or use phase = \"liquid\"", pressure_pa * 1e-5),
+                    );
+                    return;
+                }
+                _ => {}
+            }
+        }
+    }
     let built = match fluid.build(pressure_pa, inlet_c) {
         Ok(f) => f,
         Err(e) => {

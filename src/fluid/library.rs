@@ -21,7 +21,7 @@ pub const TABLES: [(&str, &str); 9] = [
 /// Every name a case may give as `fluid`, with a one-line description.
 pub fn catalogue() -> Vec<(String, String)> {
     let mut out = vec![
-        ("water".to_string(), "water and steam, single phase, IAPWS-IF97 (liquid or vapour by the inlet state)".to_string()),
+        ("water".to_string(), "water or steam, single phase, IAPWS-IF97 (phase = \"liquid\", the default, or \"vapour\")".to_string()),
         ("constant".to_string(), "constant properties given in the case ([hot.properties] / [cold.properties])".to_string()),
         ("table".to_string(), "your own property table file (table_file = \"…\"; format in `hxgrid props --help`)".to_string()),
     ];
@@ -53,8 +53,8 @@ pub fn names() -> Vec<String> {
 /// How a fluid is chosen, independent of the case-file syntax.
 #[derive(Debug, Clone)]
 pub enum FluidChoice {
-    /// IAPWS-IF97 water; phase from the inlet temperature.
-    Water,
+    /// IAPWS-IF97 water in the given single phase.
+    Water(super::WaterPhase),
     /// Constant properties.
     Constant(Props),
     /// A parsed table (built-in or user file).
@@ -65,7 +65,10 @@ impl FluidChoice {
     /// Build the fluid for a stream at `pressure_pa` whose inlet is `inlet_c`.
     pub fn build(&self, pressure_pa: f64, inlet_c: f64) -> Result<Arc<dyn Fluid>, super::FluidError> {
         Ok(match self {
-            FluidChoice::Water => Arc::new(Water::new(pressure_pa, Water::phase_at(pressure_pa, inlet_c))?),
+            FluidChoice::Water(phase) => {
+                let _ = inlet_c;
+                Arc::new(Water::new(pressure_pa, *phase)?)
+            }
             FluidChoice::Constant(p) => Arc::new(ConstantFluid::new(*p)),
             FluidChoice::Table(t) => Arc::new(t.clone().at_pressure(pressure_pa)),
         })

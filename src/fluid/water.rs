@@ -76,6 +76,11 @@ pub fn saturation_temperature_c(pressure_pa: f64) -> f64 {
     seuif97::px(pressure_pa * 1e-6, 0.0, seuif97::OT)
 }
 
+/// Saturation pressure (Pa) at `t_c` (°C), IF97 region 4 (valid up to the critical point).
+pub fn saturation_pressure_pa(t_c: f64) -> f64 {
+    seuif97::tx(t_c, 0.0, seuif97::OP) * 1e6
+}
+
 /// Properties straight from IF97 at (p in MPa, T in °C), in SI units; h in J/kg.
 pub fn direct(p_mpa: f64, t_c: f64) -> (f64, Props) {
     use seuif97::{pt, OCP, OD, ODV, OH, OTC};
