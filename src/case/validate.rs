@@ -273,13 +273,35 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
     };
     let mut problems = shape.problems;
     match validate(&file, default_name, base_dir) {
-        Ok(case) if problems.is_empty() => Ok(case),
+        Ok(mut case) if problems.is_empty() => {
+            let ex = case.build();
+            case.warnings.extend(velocity_warnings(&ex));
+            Ok(case)
+        }
         Ok(_) => Err(invalid(problems)),
         Err(more) => {
             problems.extend(more);
             Err(invalid(problems))
         }
     }
+}
+
+/// Warnings for inlet velocities far outside normal practice (common design ranges:
+/// liquids about 0.1–3 m/s in tubes, gases about 2–30 m/s; flagged beyond 0.05–5 and 0.5–60).
+pub fn velocity_warnings(ex: &crate::model::Exchanger) -> Vec<String> {
+    let mut out = Vec::new();
+    for (name, s) in [("hot", &ex.hot), ("cold", &ex.cold)] {
+        let Some(area) = s.channel.flow_area_m2 else { continue };
+        let rho = s.fluid.density_at(s.inlet_c, s.inlet_pressure_pa);
+        let u = s.mass_flow_kg_s / (rho * area);
+        let (lo, hi, kind) = if rho > 200.0 { (0.05, 5.0, "a liquid") } else { (0.5, 60.0, "a gas") };
+        if u < lo || u > hi {
+            out.push(format!(
+                "{name} stream: inlet velocity {u:.3} m/s is far outside normal practice for {kind} ({lo}–{hi} m/s): check {name}.mass_flow_kg_s and the flow geometry (diameters in metres?)"
+            ));
+        }
+    }
+    out
 }
 
 /// Standard atmosphere, Pa: the default stream pressure.
@@ -826,7 +848,7 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
                 if p.is_finite() && ((p - tp) / tp).abs() > 0.005 {
                     c.fail(
                         &key("pressure_bar_abs"),
-                        format!("{} bar does not match fluid \"{}\", tabulated at {} bar: set pressure_bar_abs = {} or omit it, or choose the table for your pressure", p * 1e-5, s.fluid, tp * 1e-5, tp * 1e-5),
+                        format!("{:.4} bar does not match fluid \"{}\", tabulated at {:.4} bar: set pressure_bar_abs = {} or omit it, or choose the table for your pressure", p * 1e-5, s.fluid, tp * 1e-5, (tp * 1e-5 * 1e6).round() / 1e6),
                     );
                 }
             }
