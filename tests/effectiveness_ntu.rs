@@ -108,7 +108,7 @@ fn lmtd_check_value() {
 }
 
 /// The other spatial schemes converge to the same closed-form effectiveness at their own
-/// orders: first-order upwind (order 1) and MUSCL/van Leer TVD (order 2 on these smooth,
+/// orders: first-order upwind (order 1) and MUSCL/van Albada TVD (order 2 on these smooth,
 /// monotone profiles).
 #[test]
 fn upwind_and_tvd_schemes_converge_at_their_orders() {

@@ -126,7 +126,7 @@ fn front(run: &TransientRun) -> (f64, f64, f64, f64) {
 ///   duct N mixed tanks in series: the 50 % crossing is the median of a Gamma(N)
 ///   distribution, (L/u)(1 − 1/(3N)) to leading order (a standard tanks-in-series result).
 ///   That is its stated error; measured within 10 % of it.
-/// - TVD (MUSCL, van Leer): stated error within one cell's transit time, |err| ≤ (L/u)/N,
+/// - TVD (MUSCL, van Albada): stated error within one cell's transit time, |err| ≤ (L/u)/N,
 ///   and a 10–90 % front less than half as wide as upwinding's. (Limiters drop to first
 ///   order at the discontinuity, so its crossing error falls more slowly than 1/N.)
 #[test]

@@ -110,6 +110,25 @@ pub enum SolveError {
         /// Centre of the offending cell, m.
         position_m: f64,
     },
+    /// The converged discrete solution violates the second law (the hot stream colder than
+    /// the cold one at some face): the cells are too long for the scheme.
+    #[error(
+        "the grid is too coarse: with {cells} cells the largest cell NTU is {max_cell_ntu:.3}, and the discrete solution breaks \
+         the second law by {deficit_k:.3e} K at x = {position_m:.4} m (hot colder than cold, or a stream beyond the inlet \
+         temperatures). Use at least {suggested_cells} cells ([solver] cells), or scheme = \"upwind\", which stays monotone on coarse grids"
+    )]
+    GridTooCoarse {
+        /// Cells used.
+        cells: usize,
+        /// Largest UA·Δx/C_min of a cell.
+        max_cell_ntu: f64,
+        /// Where the violation is largest, m.
+        position_m: f64,
+        /// Size of the violation there, K.
+        deficit_k: f64,
+        /// Cells that bring the cell NTU to 0.5.
+        suggested_cells: usize,
+    },
     /// The converged state leaves a fluid's valid range.
     #[error(
         "the {stream} stream reaches {temperature_c:.3} °C at x = {position_m:.4} m, outside {fluid}'s valid \
@@ -342,6 +361,7 @@ pub fn solve_steady(
         observer.iteration(iterations, norm / scale);
     }
     let solution = unpack(&lay, dx, &x, iterations, norm / scale);
+    check_second_law(ex, &solution)?;
     check_ranges(ex, &solution)?;
     Ok(solution)
 }
@@ -359,6 +379,39 @@ fn unpack(lay: &Grid, dx: f64, x: &[Vector3<f64>], iterations: usize, res: f64) 
         iterations,
         relative_residual: res,
     }
+}
+
+/// The hot stream must not be colder than the cold stream at any face. The trapezoidal
+/// scheme (like Crank–Nicolson in time) stops being monotone when a cell's NTU exceeds about
+/// 2; the error names the grid that fixes it instead of returning an impossible profile.
+fn check_second_law(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
+    let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
+    let tol = 1e-9 * (th - tc).abs().max(1.0);
+    // Violation at each face: hot below cold, or either stream outside [T_c,in, T_h,in].
+    let worst = s
+        .hot_faces_c
+        .iter()
+        .zip(&s.cold_faces_c)
+        .enumerate()
+        .map(|(j, (&h, &c))| (j, (c - h).max(tc - h).max(h - th).max(tc - c).max(c - th)))
+        .fold((0, f64::NEG_INFINITY), |a, b| if b.1 > a.1 { b } else { a });
+    if worst.1 <= tol {
+        return Ok(());
+    }
+    let max_cell_ntu = (0..s.cells)
+        .map(|i| {
+            let d = ex.cell(s.dx_m, &s.cell_temps(i));
+            let c_min = (ex.hot.mass_flow_kg_s * d.hot_props.cp).min(ex.cold.mass_flow_kg_s * d.cold_props.cp);
+            d.ua_per_length_w_mk * s.dx_m / c_min.max(f64::MIN_POSITIVE)
+        })
+        .fold(0.0, f64::max);
+    Err(SolveError::GridTooCoarse {
+        cells: s.cells,
+        max_cell_ntu,
+        position_m: worst.0 as f64 * s.dx_m,
+        deficit_k: worst.1,
+        suggested_cells: ((s.cells as f64 * max_cell_ntu / 0.5).ceil() as usize).max(s.cells + 1),
+    })
 }
 
 fn check_ranges(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
