@@ -320,6 +320,8 @@ impl Checker {
     fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
         if !(v.is_finite() && v > 0.0) {
             self.fail(key, format!("{v} {unit} is not valid: it must be a finite number above zero"));
+        } else if v > 1e9 {
+            self.fail(key, format!("{v} {unit} is implausibly large for any exchanger: check the units in the key name"));
         }
         v
     }
@@ -820,8 +822,8 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
 fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> StreamSpec {
     let key = |k: &str| format!("{side}.{k}");
     let inlet_c = s.inlet_temperature_C;
-    if !inlet_c.is_finite() || inlet_c <= -273.15 {
-        c.fail(&key("inlet_temperature_C"), format!("{inlet_c} °C is not valid: give a finite temperature above −273.15 °C"));
+    if !inlet_c.is_finite() || inlet_c <= -273.15 || inlet_c > 5000.0 {
+        c.fail(&key("inlet_temperature_C"), format!("{inlet_c} °C is not valid: give a temperature above −273.15 °C and below 5000 °C (°C, not K?)"));
     }
     let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
     let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);

@@ -68,7 +68,7 @@ impl Banded {
         let (n, kl, ku) = (self.n, self.kl, self.ku);
         for k in 0..n {
             let last = (k + kl).min(n - 1);
-            let p = (k..=last).max_by(|&a, &c| self.get(a, k).abs().partial_cmp(&self.get(c, k).abs()).unwrap()).unwrap();
+            let p = (k..=last).max_by(|&a, &c| self.get(a, k).abs().total_cmp(&self.get(c, k).abs())).unwrap_or(k);
             if self.get(p, k) == 0.0 || !self.get(p, k).is_finite() {
                 return Err(k);
             }

@@ -488,7 +488,7 @@ pub fn simulate(
     let outputs: Vec<f64> = stops.clone();
     stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
     stops.push(t_end);
-    stops.sort_by(|a, b| a.partial_cmp(b).unwrap());
+    stops.sort_by(|a, b| a.total_cmp(b));
     stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
 
     let mut run = TransientRun {
