@@ -172,16 +172,18 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, quiet: bool
     let options = RatingOptions { study_levels: grid_study };
     let report = match study::rate(&case.name, &exchanger, &case.solver, &options, &mut Progress { quiet }) {
         Ok(r) => r,
-        Err(e) => {
-            eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
-            return ExitCode::from(EXIT_SOLVER);
-        }
+        Err(e) => return solver_failed(&e),
     };
     let dir = out.unwrap_or_else(|| Path::new("output").join(&case.name));
-    match hxgrid::output::write_steady(&report, &dir) {
+    finish(hxgrid::output::write_steady(&report, &dir), quiet, || print_report(&report))
+}
+
+/// Map a write result to the exit code, printing the report and the files unless quiet.
+fn finish(written: Result<Vec<PathBuf>, hxgrid::output::OutputError>, quiet: bool, print: impl FnOnce()) -> ExitCode {
+    match written {
         Ok(files) => {
             if !quiet {
-                print_report(&report);
+                print();
                 println!("\nwrote:");
                 for f in files {
                     println!("  {}", f.display());
@@ -194,6 +196,12 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, quiet: bool
             ExitCode::from(EXIT_OUTPUT)
         }
     }
+}
+
+/// Report a solver failure (nothing was written).
+fn solver_failed(e: &dyn std::fmt::Display) -> ExitCode {
+    eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
+    ExitCode::from(EXIT_SOLVER)
 }
 
 /// A progress bar on a terminal; nothing otherwise.
@@ -239,28 +247,10 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     }
     let report = match result {
         Ok(r) => r,
-        Err(e) => {
-            eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
-            return ExitCode::from(EXIT_SOLVER);
-        }
+        Err(e) => return solver_failed(&e),
     };
     let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-transient", case.name)));
-    match hxgrid::output::write_transient(&report, &dir) {
-        Ok(files) => {
-            if !quiet {
-                print_transient(&report);
-                println!("\nwrote:");
-                for f in files {
-                    println!("  {}", f.display());
-                }
-            }
-            ExitCode::SUCCESS
-        }
-        Err(e) => {
-            eprintln!("error: {e}");
-            ExitCode::from(EXIT_OUTPUT)
-        }
-    }
+    finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report))
 }
 
 fn print_transient(r: &hxgrid::scenario::TransientReport) {

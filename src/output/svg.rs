@@ -3,6 +3,7 @@
 use super::OutputError;
 use crate::results::SteadyReport;
 use crate::scenario::TransientReport;
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use std::path::Path;
 
@@ -13,6 +14,41 @@ const SIZE: (u32, u32) = (900, 560);
 
 fn plot_err(path: &Path) -> impl Fn(String) -> OutputError + '_ {
     move |message| OutputError::Plot { path: path.display().to_string(), message }
+}
+
+type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Grid, tick labels and axis titles.
+fn axes(chart: &mut Chart, x_desc: &str, y_desc: &str, e: &dyn Fn(String) -> OutputError) -> Result<(), OutputError> {
+    chart
+        .configure_mesh()
+        .x_desc(x_desc)
+        .y_desc(y_desc)
+        .label_style(("sans-serif", 14))
+        .draw()
+        .map_err(|x| e(x.to_string()))
+}
+
+/// The legend box.
+fn legend<'a, 'b: 'a>(chart: &mut Chart<'a, 'b>, position: SeriesLabelPosition, size: u32, e: &dyn Fn(String) -> OutputError) -> Result<(), OutputError> {
+    chart
+        .configure_series_labels()
+        .background_style(WHITE.mix(0.85))
+        .border_style(BLACK)
+        .position(position)
+        .label_font(("sans-serif", size))
+        .draw()
+        .map_err(|x| e(x.to_string()))
+}
+
+/// A labelled solid line.
+fn line<'a, 'b: 'a>(chart: &mut Chart<'a, 'b>, pts: Vec<(f64, f64)>, style: ShapeStyle, label: String, e: &dyn Fn(String) -> OutputError) -> Result<(), OutputError> {
+    chart
+        .draw_series(LineSeries::new(pts, style))
+        .map_err(|x| e(x.to_string()))?
+        .label(label)
+        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], style));
+    Ok(())
 }
 
 /// Padded range of a set of values.
@@ -38,33 +74,16 @@ pub fn temperatures(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         .y_label_area_size(70)
         .build_cartesian_2d(0.0..r.length_m, lo..hi)
         .map_err(|x| e(x.to_string()))?;
-    chart
-        .configure_mesh()
-        .x_desc("position along the hot stream's flow, x (m)")
-        .y_desc("temperature (°C)")
-        .label_style(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "position along the hot stream's flow, x (m)", "temperature (°C)", &e)?;
     let series: [(&str, RGBColor, Vec<(f64, f64)>); 3] = [
         ("hot stream", HOT, r.faces_m.iter().copied().zip(r.hot_faces_c.iter().copied()).collect()),
         ("cold stream", COLD, r.faces_m.iter().copied().zip(r.cold_faces_c.iter().copied()).collect()),
         ("wall (mid-thickness)", WALL, r.profile.iter().map(|p| (p.x_m, p.wall_c)).collect()),
     ];
     for (label, color, pts) in series {
-        chart
-            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label(label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
     }
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .position(SeriesLabelPosition::UpperRight)
-        .label_font(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, 14, &e)?;
     root.present().map_err(|x| e(x.to_string()))
 }
 
@@ -103,18 +122,8 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
             .y_label_area_size(80)
             .build_cartesian_2d(0.0..r.length_m, lo..hi)
             .map_err(|x| e(x.to_string()))?;
-        chart
-            .configure_mesh()
-            .x_desc("position along the hot stream's flow, x (m)")
-            .y_desc(ylabel)
-            .label_style(("sans-serif", 14))
-            .draw()
-            .map_err(|x| e(x.to_string()))?;
-        chart
-            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label("grid (local)")
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+        axes(&mut chart, "position along the hot stream's flow, x (m)", ylabel, &e)?;
+        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), "grid (local)".to_string(), &e)?;
         if let Some(v) = lumped {
             chart
                 .draw_series(DashedLineSeries::new(vec![(0.0, v), (r.length_m, v)], 8, 5, BLACK.stroke_width(1)))
@@ -122,14 +131,7 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
                 .label("lumped hand method (one value)")
                 .legend(|(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], BLACK.stroke_width(1)));
         }
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.85))
-            .border_style(BLACK)
-            .position(SeriesLabelPosition::UpperRight)
-            .label_font(("sans-serif", 13))
-            .draw()
-            .map_err(|x| e(x.to_string()))?;
+        legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
     }
     root.present().map_err(|x| e(x.to_string()))
 }
@@ -164,30 +166,13 @@ pub fn pressure(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         .y_label_area_size(70)
         .build_cartesian_2d(0.0..r.length_m, lo..hi)
         .map_err(|x| e(x.to_string()))?;
-    chart
-        .configure_mesh()
-        .x_desc("position along the hot stream's flow, x (m)")
-        .y_desc("pressure drop from inlet, Δp (kPa)")
-        .label_style(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "position along the hot stream's flow, x (m)", "pressure drop from inlet, Δp (kPa)", &e)?;
     let any = !series.is_empty();
     for (label, color, pts) in series {
-        chart
-            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label(label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
     }
     if any {
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.85))
-            .border_style(BLACK)
-            .position(SeriesLabelPosition::UpperLeft)
-            .label_font(("sans-serif", 14))
-            .draw()
-            .map_err(|x| e(x.to_string()))?;
+        legend(&mut chart, SeriesLabelPosition::UpperLeft, 14, &e)?;
     }
     root.present().map_err(|x| e(x.to_string()))
 }
@@ -214,13 +199,7 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         .y_label_area_size(70)
         .build_cartesian_2d(0.0..t_end, lo..hi)
         .map_err(|x| e(x.to_string()))?;
-    chart
-        .configure_mesh()
-        .x_desc("time, t (s)")
-        .y_desc("temperature (°C)")
-        .label_style(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "time, t (s)", "temperature (°C)", &e)?;
     for (label, color, dashed, pts) in lines {
         let style = color.stroke_width(if dashed { 1 } else { 2 });
         let anno = if dashed {
@@ -230,14 +209,7 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         };
         anno.label(label).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], style));
     }
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .position(SeriesLabelPosition::UpperRight)
-        .label_font(("sans-serif", 13))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
     let flows: [(&str, RGBColor, Vec<(f64, f64)>); 2] = [
         ("hot mass flow", HOT, s.iter().map(|p| (p.time_s, p.hot_flow_kg_s)).collect()),
         ("cold mass flow", COLD, s.iter().map(|p| (p.time_s, p.cold_flow_kg_s)).collect()),
@@ -249,28 +221,11 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         .y_label_area_size(70)
         .build_cartesian_2d(0.0..t_end, lo..hi)
         .map_err(|x| e(x.to_string()))?;
-    chart
-        .configure_mesh()
-        .x_desc("time, t (s)")
-        .y_desc("mass flow (kg/s)")
-        .label_style(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "time, t (s)", "mass flow (kg/s)", &e)?;
     for (label, color, pts) in flows {
-        chart
-            .draw_series(LineSeries::new(pts, color.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label(label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(2)));
+        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
     }
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .position(SeriesLabelPosition::UpperRight)
-        .label_font(("sans-serif", 13))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
     root.present().map_err(|x| e(x.to_string()))
 }
 
@@ -289,37 +244,16 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         .y_label_area_size(70)
         .build_cartesian_2d(0.0..length, lo..hi)
         .map_err(|x| e(x.to_string()))?;
-    chart
-        .configure_mesh()
-        .x_desc("position along the hot stream's flow, x (m)")
-        .y_desc("temperature (°C)")
-        .label_style(("sans-serif", 14))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "position along the hot stream's flow, x (m)", "temperature (°C)", &e)?;
     let k = r.snapshots.len().max(1) as f64;
     for (i, snap) in r.snapshots.iter().enumerate() {
         let shade = 0.3 + 0.7 * (i as f64 + 1.0) / k;
         let hot = RGBColor((200.0 * shade + 55.0 * (1.0 - shade)) as u8, (40.0 * shade + 200.0 * (1.0 - shade)) as u8, (30.0 * shade + 200.0 * (1.0 - shade)) as u8);
         let cold = RGBColor((30.0 * shade + 200.0 * (1.0 - shade)) as u8, (90.0 * shade + 210.0 * (1.0 - shade)) as u8, (200.0 * shade + 240.0 * (1.0 - shade)) as u8);
         let t = snap.time_s;
-        chart
-            .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()), hot.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label(format!("hot, t = {t} s"))
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], hot.stroke_width(2)));
-        chart
-            .draw_series(LineSeries::new(r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()), cold.stroke_width(2)))
-            .map_err(|x| e(x.to_string()))?
-            .label(format!("cold, t = {t} s"))
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], cold.stroke_width(2)));
+        line(&mut chart, r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()).into_iter().collect(), hot.stroke_width(2), format!("hot, t = {t} s").to_string(), &e)?;
+        line(&mut chart, r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()).into_iter().collect(), cold.stroke_width(2), format!("cold, t = {t} s").to_string(), &e)?;
     }
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.85))
-        .border_style(BLACK)
-        .position(SeriesLabelPosition::UpperRight)
-        .label_font(("sans-serif", 12))
-        .draw()
-        .map_err(|x| e(x.to_string()))?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, 12, &e)?;
     root.present().map_err(|x| e(x.to_string()))
 }

@@ -415,19 +415,29 @@ fn check_second_law(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError
 }
 
 fn check_ranges(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
-    for (name, stream, faces) in [("hot", &ex.hot, &s.hot_faces_c), ("cold", &ex.cold, &s.cold_faces_c)] {
-        let range = stream.fluid.range();
-        // Walk in the stream's own flow direction, so the first face reported is where it
-        // first leaves the range.
+    check_faces_in_range(ex, &s.hot_faces_c, &s.cold_faces_c, s.dx_m, None)
+}
+
+/// Every face of both streams inside its fluid's valid range, walking each stream in its
+/// own flow direction so the first face reported is where it first leaves the range; `time`
+/// (s) is named in the message for transients.
+pub(crate) fn check_faces_in_range(ex: &Exchanger, hot: &[f64], cold: &[f64], dx: f64, time: Option<f64>) -> Result<(), SolveError> {
+    for (name, stream, faces) in [("hot", &ex.hot, hot), ("cold", &ex.cold, cold)] {
+        let (min_c, max_c) = stream.fluid.bounds();
         let reversed = name == "cold" && ex.arrangement == Arrangement::Counterflow;
         let order: Box<dyn Iterator<Item = (usize, &f64)>> =
             if reversed { Box::new(faces.iter().enumerate().rev()) } else { Box::new(faces.iter().enumerate()) };
         for (j, &t) in order {
-            if !(t >= range.min_c && t <= range.max_c) {
+            if !(t >= min_c - 1e-9 && t <= max_c + 1e-9) {
+                let range = stream.fluid.range();
+                let fluid = match time {
+                    Some(t) => format!("{} (at t = {t:.3} s)", stream.fluid.name()),
+                    None => stream.fluid.name(),
+                };
                 return Err(SolveError::LeftRange {
                     stream: name,
-                    fluid: stream.fluid.name(),
-                    position_m: j as f64 * s.dx_m,
+                    fluid,
+                    position_m: j as f64 * dx,
                     temperature_c: t,
                     min_c: range.min_c,
                     max_c: range.max_c,

@@ -22,7 +22,7 @@
 //! stable, with Newton on the same block-tridiagonal / banded Jacobian as the steady
 //! solver, reused across steps while Newton converges quickly.
 
-use super::steady::{jacobian, Jacobian};
+use super::steady::{check_faces_in_range, jacobian, Jacobian};
 use super::{solve_steady, SilentObserver, SolveError, SteadySettings};
 use crate::model::{Exchanger, Grid};
 use nalgebra::{DVector, Vector3};
@@ -398,23 +398,7 @@ impl Model<'_> {
 
     /// Check every face against its fluid's range.
     fn check(&self, t: f64, snap: &Snapshot) -> Result<(), SolveError> {
-        for (name, stream, faces) in [("hot", &self.ex.hot, &snap.hot_faces_c), ("cold", &self.ex.cold, &snap.cold_faces_c)] {
-            let range = stream.fluid.range();
-            for (j, &temp) in faces.iter().enumerate() {
-                if !(temp >= range.min_c - 1e-9 && temp <= range.max_c + 1e-9) {
-                    return Err(SolveError::LeftRange {
-                        stream: name,
-                        fluid: format!("{} (at t = {t:.3} s)", stream.fluid.name()),
-                        position_m: j as f64 * self.dx,
-                        temperature_c: temp,
-                        min_c: range.min_c,
-                        max_c: range.max_c,
-                        reason: range.reason,
-                    });
-                }
-            }
-        }
-        Ok(())
+        check_faces_in_range(self.ex, &snap.hot_faces_c, &snap.cold_faces_c, self.dx, Some(t))
     }
 }
 
