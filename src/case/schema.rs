@@ -151,6 +151,8 @@ pub struct Shape {
     pub only_unknown_keys: bool,
     /// Dotted paths of the unknown keys.
     pub unknown: Vec<Vec<String>>,
+    /// Dotted keys suggested for misspellings (not to be reported again as missing).
+    pub suggested: Vec<String>,
 }
 
 /// 1-based line of a byte offset.
@@ -173,7 +175,7 @@ fn describe(v: &Value) -> String {
 /// Check the shape of `text`; Err(message) for TOML syntax errors.
 pub fn check(text: &str) -> Result<Shape, String> {
     let doc = ImDocument::parse(text).map_err(|e| e.to_string())?;
-    let mut shape = Shape { problems: Vec::new(), only_unknown_keys: true, unknown: Vec::new() };
+    let mut shape = Shape { problems: Vec::new(), only_unknown_keys: true, unknown: Vec::new(), suggested: Vec::new() };
     walk(text, doc.as_table(), &mut Vec::new(), ROOT, None, &mut shape);
     Ok(shape)
 }
@@ -181,10 +183,17 @@ pub fn check(text: &str) -> Result<Shape, String> {
 fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Field], header_line: Option<usize>, shape: &mut Shape) {
     let dotted = |path: &[String], key: &str| if path.is_empty() { key.to_string() } else { format!("{}.{key}", path.join(".")) };
     let valid: Vec<String> = fields.iter().map(|f| f.key.to_string()).collect();
+    // Keys suggested for a misspelling are not reported again as missing.
+    let mut suggested: Vec<String> = Vec::new();
     for (key, item) in table.iter() {
         let line = table.key(key).and_then(|k| k.span()).or_else(|| item.span()).map(|s| line_of(text, s.start));
         let Some(field) = fields.iter().find(|f| f.key == key) else {
-            let hint = closest(key, &valid).map(|c| format!("did you mean {c}? ")).unwrap_or_default();
+            let near = closest(key, &valid);
+            if let Some(c) = near {
+                suggested.push(c.to_string());
+                shape.suggested.push(dotted(path, c));
+            }
+            let hint = near.map(|c| format!("did you mean {c}? ")).unwrap_or_default();
             let here = if path.is_empty() { "at the top level".to_string() } else { format!("in [{}]", path.join(".")) };
             shape.problems.push(Problem {
                 key: dotted(path, key),
@@ -210,7 +219,7 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
             (Ty::Num, Item::Value(Value::Float(_) | Value::Integer(_))) => {}
             (Ty::Num, _) => wrong(&format!("a number ({})", field.hint)),
             (Ty::Int, Item::Value(Value::Integer(_))) => {}
-            (Ty::Int, _) => wrong(&format!("a whole number ({})", field.hint)),
+            (Ty::Int, _) => wrong("a whole number"),
             (Ty::Str(words), Item::Value(Value::String(s))) => {
                 if !words.is_empty() && !words.contains(&s.value().as_str()) {
                     let options: Vec<String> = words.iter().map(|w| w.to_string()).collect();
@@ -247,9 +256,12 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
             },
         }
     }
-    for field in fields.iter().filter(|f| f.required && !table.contains_key(f.key)) {
+    for field in fields.iter().filter(|f| f.required && !table.contains_key(f.key) && !suggested.iter().any(|k| k == f.key)) {
         let what = match field.ty {
             Ty::Table(_) => format!("is missing: add {}", field.hint),
+            Ty::Str(words) if !words.is_empty() => {
+                format!("is missing: give the {}, one of {}", field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "))
+            }
             _ => format!("is missing: give {}", field.hint),
         };
         shape.problems.push(Problem { key: dotted(path, field.key), line: header_line, message: what });

@@ -271,7 +271,7 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
         Err(e) if shape.problems.is_empty() => return Err(CaseError::Syntax { origin: origin.into(), message: e.to_string() }),
         Err(_) => return Err(invalid(shape.problems)),
     };
-    let mut problems = shape.problems;
+    let mut problems = shape.problems.clone();
     match validate(&file, default_name, base_dir) {
         Ok(mut case) if problems.is_empty() => {
             let ex = case.build();
@@ -280,7 +280,8 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
         }
         Ok(_) => Err(invalid(problems)),
         Err(more) => {
-            problems.extend(more);
+            // A key already suggested for a misspelling is not reported again as missing.
+            problems.extend(more.into_iter().filter(|p| !(shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))));
             Err(invalid(problems))
         }
     }
@@ -984,10 +985,15 @@ fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f6
         }
     };
     let r = built.range();
-    if !(inlet_c >= r.min_c && inlet_c <= r.max_c) {
+    if inlet_c < r.min_c {
         c.fail(
             &format!("{side}.inlet_temperature_C"),
-            format!("{inlet_c} °C is outside the valid range {:.2} … {:.2} °C of {}: {}", r.min_c, r.max_c, built.name(), r.reason),
+            format!("{inlet_c} °C is below the lowest valid temperature {:.2} °C of {} (valid {:.2} … {:.2} °C)", r.min_c, built.name(), r.min_c, r.max_c),
+        );
+    } else if inlet_c > r.max_c {
+        c.fail(
+            &format!("{side}.inlet_temperature_C"),
+            format!("{inlet_c} °C is above the valid range {:.2} … {:.2} °C of {}: {}", r.min_c, r.max_c, built.name(), r.reason),
         );
     }
 }

@@ -33,7 +33,7 @@ const R_UNIVERSAL: f64 = 8.314_462_618;
 
 /// A problem in a table file.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
-#[error("{file}, line {line}: {problem}")]
+#[error("{file}{}: {problem}", if *line > 0 { format!(", line {line}") } else { String::new() })]
 pub struct TableError {
     /// File name (or built-in fluid name).
     pub file: String,
