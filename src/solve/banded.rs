@@ -120,11 +120,7 @@ mod tests {
     #[test]
     fn matches_dense_solve() {
         let (n, kl, ku) = (17, 5, 4);
-        let mut seed = 987654321u64;
-        let mut rnd = || {
-            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-            ((seed >> 33) as f64 / (1u64 << 31) as f64) - 0.5
-        };
+        let mut rnd = crate::solve::test_random(987654321u64);
         let mut band = Banded::zeros(n, kl, ku);
         let mut dense = nalgebra::DMatrix::<f64>::zeros(n, n);
         for i in 0..n {

@@ -89,11 +89,7 @@ mod tests {
     fn matches_dense_solve() {
         let n = 7;
         let mut a = BlockTridiagonal::zeros(n);
-        let mut seed = 12345u64;
-        let mut rnd = || {
-            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
-            ((seed >> 33) as f64 / (1u64 << 31) as f64) - 0.5
-        };
+        let mut rnd = crate::solve::test_random(12345u64);
         let mut dense = nalgebra::DMatrix::<f64>::zeros(3 * n, 3 * n);
         for i in 0..n {
             for r in 0..3 {

@@ -10,3 +10,12 @@ pub mod transient;
 pub use banded::Banded;
 pub use blocktri::BlockTridiagonal;
 pub use steady::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
+
+/// A small deterministic random generator for the linear-algebra tests (values in ±½).
+#[cfg(test)]
+pub(crate) fn test_random(mut seed: u64) -> impl FnMut() -> f64 {
+    move || {
+        seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        ((seed >> 33) as f64 / (1u64 << 31) as f64) - 0.5
+    }
+}
