@@ -115,3 +115,50 @@ proptest! {
         prop_assert!(hxgrid::output::check_finite(&report).is_ok());
     }
 }
+
+/// Random transient runs (short, coarse): any start, schedule and integrator gives finite
+/// results that close the energy balance, or a clear error — never a panic.
+fn transient_case() -> impl Strategy<Value = (Random, f64, f64, f64, bool, bool)> {
+    (random(), 0.0..1.0f64, 0.0..2.0f64, 5.0..120.0f64, any::<bool>(), any::<bool>())
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 24, ..ProptestConfig::default() })]
+
+    #[test]
+    fn transients_are_finite_and_conserve_energy((r, flow_factor, step_frac, duration, uniform, explicit) in transient_case()) {
+        use hxgrid::solve::transient::*;
+        let mut r = r;
+        r.cells = r.cells.min(30);
+        let text = case_text(&r);
+        let case = hxgrid::case::parse_str(&text, "random", "random").expect("valid by construction");
+        let ex = case.build();
+        let inputs = Inputs {
+            cold_flow_kg_s: Signal::Ramp { start_s: duration * 0.2, end_s: duration * 0.3, from: ex.cold.mass_flow_kg_s, to: ex.cold.mass_flow_kg_s * flow_factor },
+            hot_inlet_c: Signal::Step { time_s: duration * 0.5, before: ex.hot.inlet_c, after: ex.cold.inlet_c + (ex.hot.inlet_c - ex.cold.inlet_c) * (0.5 + 0.25 * step_frac) },
+            ..Inputs::constant(&ex)
+        };
+        let settings = TransientSettings {
+            cells: r.cells as usize,
+            duration_s: duration,
+            output_interval_s: duration / 20.0,
+            integrator: if explicit { Integrator::Explicit } else { Integrator::Implicit },
+            initial: if uniform { Initial::Uniform(ex.cold.inlet_c) } else { Initial::Steady },
+            wall_heat_capacity_j_mk: 7900.0 * 500.0 * ex.wall.cross_section_m2(),
+            max_steps: 200_000,
+            ..Default::default()
+        };
+        match hxgrid::scenario::run("random", &ex, &inputs, &settings, None, &mut hxgrid::solve::SilentObserver) {
+            Ok(report) => {
+                prop_assert!(report.energy_closure_relative < 1e-6 || report.hot_heat_J.abs() < 1e-6, "closure {}", report.energy_closure_relative);
+                for s in &report.samples {
+                    let row = serde_json::to_value(s).unwrap();
+                    prop_assert!(row.as_object().unwrap().values().all(|v| v.as_f64().is_some_and(f64::is_finite)), "non-finite sample {row}");
+                }
+            }
+            // Refusals with a reason are fine (a coarse grid, stiffness for the explicit
+            // integrator); panics and non-finite numbers are not.
+            Err(e) => prop_assert!(!e.to_string().is_empty()),
+        }
+    }
+}
