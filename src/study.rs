@@ -157,10 +157,12 @@ fn assemble(
     let dt_max = th_in - tc_in;
     // Mean capacity rates C = Q/ΔT: C_min belongs to the stream with the larger ΔT.
     let (dt_big, dt_small) = (dth.abs().max(dtc.abs()), dth.abs().min(dtc.abs()));
-    let c_min = q.duty_w / dt_big;
+    // With (almost) no heat transferred the streams' temperature changes vanish and Q/ΔT is
+    // 0/0: take C_min from the enthalpy change over the inlet-to-inlet span instead.
+    let c_min = if dt_big > 1e-9 * dt_max.abs() { q.duty_w / dt_big } else { ex.max_duty_w() / dt_max };
     let (dt1, dt2) = lumped::end_differences(arr, th_in, q.hot_outlet_c, tc_in, q.cold_outlet_c);
     let lmtd = lumped::lmtd(dt1, dt2);
-    let pct = |a: f64, b: f64| 100.0 * (a - b) / b;
+    let pct = |a: f64, b: f64| if b.abs() > 1e-300 { 100.0 * (a - b) / b } else { 0.0 };
     let pct_of_change = |diff: f64, change: f64| if change.abs() > 0.0 { 100.0 * diff / change.abs() } else { 0.0 };
     let grid_vs_lumped = Comparison {
         duty_difference_percent: pct(q.duty_w, lumped.duty_w),

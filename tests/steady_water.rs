@@ -125,3 +125,15 @@ fn lumped_gap_visible_only_with_variable_properties() {
     // Hand calculation in the case file's header: UA = 1507.54 W/K.
     assert!((c.UA_W_K - 1507.5377).abs() < 1e-3);
 }
+
+/// Regression (found by the fuzzer): an exchanger that transfers (almost) no heat gave a
+/// non-finite NTU (Q/ΔT = 0/0) and percentage differences against a zero lumped duty. The
+/// report must stay finite.
+#[test]
+fn no_heat_transfer_gives_a_finite_report() {
+    let mut ex = common::constant_exchanger(hxgrid::model::Arrangement::Counterflow, 1.0, 0.5, false);
+    ex.hot.film = std::sync::Arc::new(hxgrid::transfer::FixedFilm { h: 0.0 });
+    let r = study::rate("none", &ex, &SteadySettings { cells: 20, ..Default::default() }, &RatingOptions::default(), &mut SilentObserver).unwrap();
+    assert!(r.duty_W.abs() < 1e-6);
+    assert!(hxgrid::output::check_finite(&r).is_ok(), "{r:?}");
+}

@@ -828,8 +828,8 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
     }
     let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
     let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);
-    if !(fouling_m2k_w.is_finite() && fouling_m2k_w >= 0.0) {
-        c.fail(&key("fouling_m2K_W"), format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001"));
+    if !(fouling_m2k_w.is_finite() && (0.0..=1.0).contains(&fouling_m2k_w)) {
+        c.fail(&key("fouling_m2K_W"), format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001 (at most 1)"));
     } else if fouling_m2k_w > 0.01 {
         c.warnings.push(format!("{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units"));
     }
