@@ -3,10 +3,6 @@
 use clap::{Parser, Subcommand};
 use std::path::PathBuf;
 
-/// Exit codes, documented in `--help` and README.
-pub const EXIT_HELP: &str = "Exit codes: 0 success · 2 command-line usage error · 3 invalid case file or input · \
-4 solver failure (no results written) · 5 results could not be written";
-
 #[derive(Debug, Parser)]
 #[command(
     name = "hxgrid",

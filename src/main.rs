@@ -16,7 +16,6 @@ const EXIT_SOLVER: u8 = 4;
 const EXIT_OUTPUT: u8 = 5;
 
 fn main() -> ExitCode {
-    let _ = cli::EXIT_HELP;
     let args = Cli::parse();
     match args.command {
         Command::Run { case, out, grid_study, quiet } => run(&case, out, grid_study.map(|g| g as usize), quiet),
