@@ -91,18 +91,6 @@ fn duct(length: f64, h: f64, area_per_length: f64, flow_area: f64, m: f64, rho: 
     }
 }
 
-/// Time at which the hot outlet first crosses the middle of a 20 → 80 °C step.
-fn half_crossing(run: &TransientRun) -> f64 {
-    let s = &run.samples;
-    for w in s.windows(2) {
-        let (a, b) = (&w[0], &w[1]);
-        if a.hot_outlet_C < 50.0 && b.hot_outlet_C >= 50.0 {
-            return a.time_s + (50.0 - a.hot_outlet_C) / (b.hot_outlet_C - a.hot_outlet_C) * (b.time_s - a.time_s);
-        }
-    }
-    f64::NAN
-}
-
 /// Times at which the hot outlet first crosses 10 %, 50 % and 90 % of a 20 → 80 °C step,
 /// and the mean arrival time ∫ t dT_out / ΔT.
 fn front(run: &TransientRun) -> (f64, f64, f64, f64) {

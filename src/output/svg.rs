@@ -81,7 +81,7 @@ pub fn temperatures(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         ("wall (mid-thickness)", WALL, r.profile.iter().map(|p| (p.x_m, p.wall_c)).collect()),
     ];
     for (label, color, pts) in series {
-        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
+        line(&mut chart, pts, color.stroke_width(2), label.to_string(), &e)?;
     }
     legend(&mut chart, SeriesLabelPosition::UpperRight, 14, &e)?;
     root.present().map_err(|x| e(x.to_string()))
@@ -123,7 +123,7 @@ pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
             .build_cartesian_2d(0.0..r.length_m, lo..hi)
             .map_err(|x| e(x.to_string()))?;
         axes(&mut chart, "position along the hot stream's flow, x (m)", ylabel, &e)?;
-        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), "grid (local)".to_string(), &e)?;
+        line(&mut chart, pts, color.stroke_width(2), "grid (local)".to_string(), &e)?;
         if let Some(v) = lumped {
             chart
                 .draw_series(DashedLineSeries::new(vec![(0.0, v), (r.length_m, v)], 8, 5, BLACK.stroke_width(1)))
@@ -169,7 +169,7 @@ pub fn pressure(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     axes(&mut chart, "position along the hot stream's flow, x (m)", "pressure drop from inlet, Δp (kPa)", &e)?;
     let any = !series.is_empty();
     for (label, color, pts) in series {
-        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
+        line(&mut chart, pts, color.stroke_width(2), label.to_string(), &e)?;
     }
     if any {
         legend(&mut chart, SeriesLabelPosition::UpperLeft, 14, &e)?;
@@ -223,7 +223,7 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         .map_err(|x| e(x.to_string()))?;
     axes(&mut chart, "time, t (s)", "mass flow (kg/s)", &e)?;
     for (label, color, pts) in flows {
-        line(&mut chart, pts.into_iter().collect(), color.stroke_width(2), label.to_string(), &e)?;
+        line(&mut chart, pts, color.stroke_width(2), label.to_string(), &e)?;
     }
     legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
     root.present().map_err(|x| e(x.to_string()))
@@ -251,8 +251,8 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         let hot = RGBColor((200.0 * shade + 55.0 * (1.0 - shade)) as u8, (40.0 * shade + 200.0 * (1.0 - shade)) as u8, (30.0 * shade + 200.0 * (1.0 - shade)) as u8);
         let cold = RGBColor((30.0 * shade + 200.0 * (1.0 - shade)) as u8, (90.0 * shade + 210.0 * (1.0 - shade)) as u8, (200.0 * shade + 240.0 * (1.0 - shade)) as u8);
         let t = snap.time_s;
-        line(&mut chart, r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()).into_iter().collect(), hot.stroke_width(2), format!("hot, t = {t} s").to_string(), &e)?;
-        line(&mut chart, r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()).into_iter().collect(), cold.stroke_width(2), format!("cold, t = {t} s").to_string(), &e)?;
+        line(&mut chart, r.faces_m.iter().copied().zip(snap.hot_faces_c.iter().copied()).collect(), hot.stroke_width(2), format!("hot, t = {t} s").to_string(), &e)?;
+        line(&mut chart, r.faces_m.iter().copied().zip(snap.cold_faces_c.iter().copied()).collect(), cold.stroke_width(2), format!("cold, t = {t} s").to_string(), &e)?;
     }
     legend(&mut chart, SeriesLabelPosition::UpperRight, 12, &e)?;
     root.present().map_err(|x| e(x.to_string()))

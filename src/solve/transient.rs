@@ -540,7 +540,7 @@ struct OdeSystem<'a, 'b> {
 }
 
 impl OdeSystem<'_, '_> {
-    fn to_model(&self, z: &DVector<f64>) -> DVector<f64> {
+    fn unscale(&self, z: &DVector<f64>) -> DVector<f64> {
         let n = self.model.n;
         let mut y = z.clone();
         for i in 0..n {
@@ -549,7 +549,7 @@ impl OdeSystem<'_, '_> {
         }
         y
     }
-    fn from_model(&self, y: &DVector<f64>) -> DVector<f64> {
+    fn scale_state(&self, y: &DVector<f64>) -> DVector<f64> {
         let n = self.model.n;
         let mut z = y.clone();
         for i in 0..n {
@@ -563,7 +563,7 @@ impl OdeSystem<'_, '_> {
 impl ode_solvers::System<f64, DVector<f64>> for OdeSystem<'_, '_> {
     fn system(&self, t: f64, z: &DVector<f64>, dz: &mut DVector<f64>) {
         let n = self.model.n;
-        self.model.derivative(t, &self.to_model(z), dz);
+        self.model.derivative(t, &self.unscale(z), dz);
         for i in 0..n {
             dz[i] *= self.scale[0];
             dz[n + i] *= self.scale[1];
@@ -585,7 +585,7 @@ fn explicit_segment(
         1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp,
     ];
     let system = OdeSystem { model, scale };
-    let z0 = system.from_model(y0);
+    let z0 = system.scale_state(y0);
     let mut stepper = ode_solvers::Dopri5::from_param(
         OdeSystem { model, scale },
         t0,
@@ -605,7 +605,7 @@ fn explicit_segment(
         ode_solvers::dop_shared::OutputType::Sparse,
     );
     let stats = stepper.integrate().map_err(|e| TransientError::Stalled { integrator: "explicit", time_s: t0, reason: format!("{e:?}") })?;
-    let y = stepper.y_out().last().map(|z| system.to_model(z)).ok_or_else(|| TransientError::Stalled {
+    let y = stepper.y_out().last().map(|z| system.unscale(z)).ok_or_else(|| TransientError::Stalled {
         integrator: "explicit",
         time_s: t0,
         reason: "no output".into(),
