@@ -290,6 +290,16 @@ impl Grid {
         out
     }
 
+    /// Outlet temperatures (hot, cold) from the face arrays of [`Grid::faces`].
+    pub fn outlets(arrangement: Arrangement, hot_faces: &[f64], cold_faces: &[f64]) -> (f64, f64) {
+        let hot = hot_faces[hot_faces.len() - 1];
+        let cold = match arrangement {
+            Arrangement::Counterflow => cold_faces[0],
+            Arrangement::Parallel => cold_faces[cold_faces.len() - 1],
+        };
+        (hot, cold)
+    }
+
     /// Face temperatures of both streams at x = 0, Δx, …, L (the inlet faces included).
     pub fn faces(&self, x: &[Vector3<f64>]) -> (Vec<f64>, Vec<f64>) {
         let n = self.n;

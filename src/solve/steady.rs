@@ -72,15 +72,12 @@ impl SteadySolution {
 
     /// Hot outlet, °C.
     pub fn hot_outlet_c(&self) -> f64 {
-        *self.hot_faces_c.last().unwrap()
+        Grid::outlets(self.grid.arrangement, &self.hot_faces_c, &self.cold_faces_c).0
     }
 
     /// Cold outlet, °C.
     pub fn cold_outlet_c(&self, arrangement: Arrangement) -> f64 {
-        match arrangement {
-            Arrangement::Counterflow => self.cold_faces_c[0],
-            Arrangement::Parallel => *self.cold_faces_c.last().unwrap(),
-        }
+        Grid::outlets(arrangement, &self.hot_faces_c, &self.cold_faces_c).1
     }
 }
 

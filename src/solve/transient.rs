@@ -334,11 +334,7 @@ impl Model<'_> {
     /// (net enthalpy inflow of both streams, hot duty), W.
     fn inflows(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>]) -> (f64, f64) {
         let (hot_faces, cold_faces) = g.faces(x);
-        let hot_out = *hot_faces.last().unwrap();
-        let cold_out = match e.arrangement {
-            crate::model::Arrangement::Counterflow => cold_faces[0],
-            crate::model::Arrangement::Parallel => *cold_faces.last().unwrap(),
-        };
+        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
         let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
         let hot = e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out));
         let cold = e.cold.mass_flow_kg_s * (cf.enthalpy(e.cold.inlet_c) - cf.enthalpy(cold_out));
@@ -368,11 +364,7 @@ impl Model<'_> {
         let mut dy = DVector::zeros(self.len());
         self.derivative(t, y, &mut dy);
         let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
-        let hot_out = *hot_faces.last().unwrap();
-        let cold_out = match e.arrangement {
-            crate::model::Arrangement::Counterflow => cold_faces[0],
-            crate::model::Arrangement::Parallel => *cold_faces.last().unwrap(),
-        };
+        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
         let fluid_energy: f64 = (0..n).map(|i| self.mass[0][i] * y[i] + self.mass[1][i] * y[n + i]).sum();
         let wall: Vec<f64> = (0..n).map(|i| y[2 * n + i]).collect();
         let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
