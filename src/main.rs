@@ -62,8 +62,7 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
         Some(p) => p * 1e5,
         None => table_p.unwrap_or(101_325.0),
     };
-    let t_probe = from.unwrap_or(20.0);
-    let f = match choice.build(p_pa, t_probe) {
+    let f = match choice.build(p_pa) {
         Ok(f) => f,
         Err(e) => return bad(e.to_string()),
     };

@@ -977,7 +977,7 @@ fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f6
             }
         }
     }
-    let built = match fluid.build(pressure_pa, inlet_c) {
+    let built = match fluid.build(pressure_pa) {
         Ok(f) => f,
         Err(e) => {
             c.fail(&format!("{side}.pressure_bar_abs"), format!("{e}"));
@@ -1063,7 +1063,7 @@ impl Case {
 }
 
 fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> Stream {
-    let fluid = s.fluid.build(s.pressure_pa, s.inlet_c).expect("fluid checked in validation");
+    let fluid = s.fluid.build(s.pressure_pa).expect("fluid checked in validation");
     channel.roughness_m = s.roughness_m;
     let film: Arc<dyn FilmCorrelation> = match &s.film {
         FilmSpec::Internal(model) => Arc::new(model.clone()),

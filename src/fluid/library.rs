@@ -62,13 +62,10 @@ pub enum FluidChoice {
 }
 
 impl FluidChoice {
-    /// Build the fluid for a stream at `pressure_pa` whose inlet is `inlet_c`.
-    pub fn build(&self, pressure_pa: f64, inlet_c: f64) -> Result<Arc<dyn Fluid>, super::FluidError> {
+    /// Build the fluid for a stream at `pressure_pa`.
+    pub fn build(&self, pressure_pa: f64) -> Result<Arc<dyn Fluid>, super::FluidError> {
         Ok(match self {
-            FluidChoice::Water(phase) => {
-                let _ = inlet_c;
-                Arc::new(Water::new(pressure_pa, *phase)?)
-            }
+            FluidChoice::Water(phase) => Arc::new(Water::new(pressure_pa, *phase)?),
             FluidChoice::Constant(p) => Arc::new(ConstantFluid::new(*p)),
             FluidChoice::Table(t) => Arc::new(t.clone().at_pressure(pressure_pa)),
         })
