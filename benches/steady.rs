@@ -67,8 +67,16 @@ fn solve_table(case_file: &str) {
     let cost = |f: &dyn Fluid| {
         let r = f.range();
         let temps: Vec<f64> = (0..10_000).map(|i| r.min_c + (r.max_c - r.min_c) * (i as f64 * 0.618_034).fract()).collect();
-        let t_p = median_time(50, || temps.iter().for_each(|&t| { black_box(f.props(black_box(t))); })) / 1e4;
-        let t_h = median_time(50, || temps.iter().for_each(|&t| { black_box(f.enthalpy(black_box(t))); })) / 1e4;
+        let t_p = median_time(50, || {
+            temps.iter().for_each(|&t| {
+                black_box(f.props(black_box(t)));
+            })
+        }) / 1e4;
+        let t_h = median_time(50, || {
+            temps.iter().for_each(|&t| {
+                black_box(f.enthalpy(black_box(t)));
+            })
+        }) / 1e4;
         (t_p, t_h)
     };
     // Each stream's calls priced at its own fluid's cost.
@@ -95,15 +103,7 @@ fn solve_table(case_file: &str) {
             in_props += np as f64 * prices[k].0 + nh as f64 * prices[k].1;
         }
         per_cell.push(time / n as f64);
-        println!(
-            "{:>8} {:>12.3} {:>12.3} {:>12} {:>14} {:>13.0}%",
-            n,
-            time * 1e3,
-            time / n as f64 * 1e6,
-            its,
-            calls,
-            100.0 * in_props / time
-        );
+        println!("{:>8} {:>12.3} {:>12.3} {:>12} {:>14} {:>13.0}%", n, time * 1e3, time / n as f64 * 1e6, its, calls, 100.0 * in_props / time);
     }
     println!("cost per cell, 10 000 vs 100 cells: {:.2}× (1.0 = linear in N)", per_cell[2] / per_cell[0]);
 }
@@ -125,11 +125,23 @@ fn main() {
     for (label, f) in &sources {
         let r = f.range();
         let temps: Vec<f64> = (0..10_000).map(|i| r.min_c + (r.max_c - r.min_c).min(1e3) * (i as f64 * 0.618_034).fract()).collect();
-        let t_p = median_time(50, || temps.iter().for_each(|&t| { black_box(f.props(black_box(t))); })) / 1e4;
-        let t_h = median_time(50, || temps.iter().for_each(|&t| { black_box(f.enthalpy(black_box(t))); })) / 1e4;
+        let t_p = median_time(50, || {
+            temps.iter().for_each(|&t| {
+                black_box(f.props(black_box(t)));
+            })
+        }) / 1e4;
+        let t_h = median_time(50, || {
+            temps.iter().for_each(|&t| {
+                black_box(f.enthalpy(black_box(t)));
+            })
+        }) / 1e4;
         println!("{label:<40} {:>12.1} {:>14.1}", t_p * 1e9, t_h * 1e9);
     }
     let temps: Vec<f64> = (0..1000).map(|i| 10.0 + 120.0 * (i as f64 * 0.618_034).fract()).collect();
-    let t_direct = median_time(5, || temps.iter().for_each(|&t| { black_box(hxgrid::fluid::water::direct(0.3, black_box(t))); })) / 1e3;
+    let t_direct = median_time(5, || {
+        temps.iter().for_each(|&t| {
+            black_box(hxgrid::fluid::water::direct(0.3, black_box(t)));
+        })
+    }) / 1e3;
     println!("{:<40} {:>12.1} {:>14}", "water, IF97 evaluated directly", t_direct * 1e9, "(same call)");
 }

@@ -92,7 +92,13 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
         let p = f.props(t);
         println!(
             "{:>10.3} {:>12.4} {:>12.2} {:>13.5e} {:>11.5} {:>9.4} {:>14.4}",
-            t, p.density, p.cp, p.viscosity, p.conductivity, p.prandtl(), (f.enthalpy(t) - h0) * 1e-3
+            t,
+            p.density,
+            p.cp,
+            p.viscosity,
+            p.conductivity,
+            p.prandtl(),
+            (f.enthalpy(t) - h0) * 1e-3
         );
     }
     ExitCode::SUCCESS
@@ -118,13 +124,7 @@ fn check(path: &Path) -> ExitCode {
     match load(path) {
         Ok(case) => {
             print_warnings(&case);
-            println!(
-                "{}: valid ({} case \"{}\", {} cells)",
-                path.display(),
-                case.arrangement.as_str(),
-                case.name,
-                case.solver.cells
-            );
+            println!("{}: valid ({} case \"{}\", {} cells)", path.display(), case.arrangement.as_str(), case.name, case.solver.cells);
             ExitCode::SUCCESS
         }
         Err(code) => code,
@@ -252,10 +252,7 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
 }
 
 fn print_transient(r: &hxgrid::scenario::TransientReport) {
-    println!(
-        "\n{} — transient, {} s simulated, {} cells, {} scheme, {}",
-        r.case, r.duration_s, r.cells, r.scheme, r.integrator
-    );
+    println!("\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
     println!("  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
     let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
     println!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");

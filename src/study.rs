@@ -47,16 +47,10 @@ pub fn grid_study(ex: &Exchanger, settings: &SteadySettings, base: usize, levels
     let n = out.len();
     let (fine, medium) = (out[n - 1].values, out[n - 2].values);
     let extrapolated = fine.zip(&medium, |f, c| richardson(f, c, 2.0, FORMAL_ORDER));
-    let observed = |get: fn(&KeyQuantities) -> f64| {
-        (n >= 3).then(|| observed_order(get(&out[n - 3].values), get(&medium), get(&fine), 2.0)).flatten()
-    };
+    let observed = |get: fn(&KeyQuantities) -> f64| (n >= 3).then(|| observed_order(get(&out[n - 3].values), get(&medium), get(&fine), 2.0)).flatten();
     Ok(GridStudy {
         formal_order: FORMAL_ORDER,
-        observed_order: ObservedOrder {
-            duty: observed(|q| q.duty_w),
-            hot_outlet: observed(|q| q.hot_outlet_c),
-            cold_outlet: observed(|q| q.cold_outlet_c),
-        },
+        observed_order: ObservedOrder { duty: observed(|q| q.duty_w), hot_outlet: observed(|q| q.hot_outlet_c), cold_outlet: observed(|q| q.cold_outlet_c) },
         finest_estimated_error: fine.zip(&extrapolated, |f, e| f - e),
         extrapolated,
         levels: out,
@@ -87,12 +81,7 @@ pub fn rate(
         let (fq, cq) = (key_quantities(ex, &sol), key_quantities(ex, &coarse));
         let ratio = sol.cells as f64 / coarse_cells as f64;
         let extrapolated = fq.zip(&cq, |f, c| richardson(f, c, ratio, FORMAL_ORDER));
-        Some(GridError {
-            coarse_cells,
-            order: FORMAL_ORDER,
-            estimated_error: fq.zip(&extrapolated, |f, e| f - e),
-            extrapolated,
-        })
+        Some(GridError { coarse_cells, order: FORMAL_ORDER, estimated_error: fq.zip(&extrapolated, |f, e| f - e), extrapolated })
     } else {
         None
     };
@@ -202,10 +191,7 @@ fn assemble(
     if let Some(e) = &grid_error_estimate {
         let rel = (e.estimated_error.duty_w / q.duty_w).abs();
         if rel > 1e-3 {
-            warnings.push(format!(
-                "estimated grid error in duty is {:.2} %: use more cells (the error falls about fourfold per doubling)",
-                100.0 * rel
-            ));
+            warnings.push(format!("estimated grid error in duty is {:.2} %: use more cells (the error falls about fourfold per doubling)", 100.0 * rel));
         }
     }
     SteadyReport {

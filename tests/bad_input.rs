@@ -6,11 +6,7 @@ use std::path::PathBuf;
 use std::process::Command;
 
 fn expectation(text: &str, key: &str) -> String {
-    text.lines()
-        .find_map(|l| l.strip_prefix(&format!("# expect-{key}: ")))
-        .unwrap_or_else(|| panic!("missing expect-{key}"))
-        .trim()
-        .to_string()
+    text.lines().find_map(|l| l.strip_prefix(&format!("# expect-{key}: "))).unwrap_or_else(|| panic!("missing expect-{key}")).trim().to_string()
 }
 
 #[test]

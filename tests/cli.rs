@@ -174,7 +174,11 @@ fn fluids_and_props_commands() {
     assert!(text(&o).contains("boiling"), "{}", text(&o));
     let o = run(&["props", "glycol"], &dir);
     assert_eq!(o.status.code(), Some(3));
-    std::fs::write(dir.join("t.csv"), "temperature_C,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s,conductivity_W_mK\n20,870,1850,0.03,0.13\n10,857,1930,0.012,0.128\n").unwrap();
+    std::fs::write(
+        dir.join("t.csv"),
+        "temperature_C,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s,conductivity_W_mK\n20,870,1850,0.03,0.13\n10,857,1930,0.012,0.128\n",
+    )
+    .unwrap();
     let o = run(&["props", "--table", "t.csv"], &dir);
     assert_eq!(o.status.code(), Some(3));
     assert!(text(&o).contains("t.csv, line 3"), "{}", text(&o));

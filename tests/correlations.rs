@@ -13,12 +13,9 @@ use hxgrid::transfer::{Channel, CompactSurface, Fin, Layout, TubeBank};
 /// (Sieder & Tate 1936; Incropera Eq. 8.61 [M]) at METHODS.md §2 check values [C].
 #[test]
 fn turbulent_tube_correlations() {
-    for (re, pr, db_heat, db_cool, st) in [
-        (1e4, 0.7, 31.606, 32.753, 37.995),
-        (1e4, 7.0, 79.390, 65.352, 81.858),
-        (1e5, 0.7, 199.419, 206.660, 239.734),
-        (1e5, 7.0, 500.918, 412.342, 516.491),
-    ] {
+    for (re, pr, db_heat, db_cool, st) in
+        [(1e4, 0.7, 31.606, 32.753, 37.995), (1e4, 7.0, 79.390, 65.352, 81.858), (1e5, 0.7, 199.419, 206.660, 239.734), (1e5, 7.0, 500.918, 412.342, 516.491)]
+    {
         assert_relative_eq!(dittus_boelter_nusselt(re, pr, true), db_heat, max_relative = 2e-5);
         assert_relative_eq!(dittus_boelter_nusselt(re, pr, false), db_cool, max_relative = 2e-5);
         assert_relative_eq!(sieder_tate_turbulent_nusselt(re, pr, 1.0), st, max_relative = 2e-5);
@@ -130,7 +127,9 @@ fn fin_efficiencies() {
     for (ml, eta) in [(0.2, 0.98688), (0.5, 0.92423), (1.0, 0.76159), (2.0, 0.48201)] {
         assert_relative_eq!(straight_efficiency(ml), eta, max_relative = 1e-5);
     }
-    for (ratio, ml, eta) in [(1.5, 0.2, 0.9839), (1.5, 0.4, 0.9391), (1.5, 1.0, 0.7221), (1.5, 2.0, 0.4302), (3.0, 0.5, 0.8753), (3.0, 1.0, 0.6464), (3.0, 2.0, 0.3435)] {
+    for (ratio, ml, eta) in
+        [(1.5, 0.2, 0.9839), (1.5, 0.4, 0.9391), (1.5, 1.0, 0.7221), (1.5, 2.0, 0.4302), (3.0, 0.5, 0.8753), (3.0, 1.0, 0.6464), (3.0, 2.0, 0.3435)]
+    {
         let r1 = 0.01;
         let r2 = ratio * r1;
         let m = ml / (r2 - r1);

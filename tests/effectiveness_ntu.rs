@@ -126,4 +126,3 @@ fn upwind_and_tvd_schemes_converge_at_their_orders() {
         }
     }
 }
-

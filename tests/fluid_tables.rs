@@ -125,7 +125,11 @@ fn bad_tables_are_rejected_with_file_and_line() {
         (format!("{TABLE_HEADER}\n20,870,1850,0.13\n40,857,1930,0.128\n"), "line 2", "5"),
         ("temperature_C,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s\n20,870,1850,0.03\n".to_string(), "line 1", "header"),
         ("temperature_K,density_kg_m3,specific_heat_J_kgK,viscosity_Pa_s,conductivity_W_mK\n293,870,1850,0.03,0.13\n".to_string(), "line 1", "temperature_K"),
-        ("temperature_C,density_kg_m3,specific_heat_kJ_kgK,viscosity_Pa_s,conductivity_W_mK\n20,870,1.85,0.03,0.13\n".to_string(), "line 1", "specific_heat_kJ_kgK"),
+        (
+            "temperature_C,density_kg_m3,specific_heat_kJ_kgK,viscosity_Pa_s,conductivity_W_mK\n20,870,1.85,0.03,0.13\n".to_string(),
+            "line 1",
+            "specific_heat_kJ_kgK",
+        ),
         (format!("{TABLE_HEADER}\n20,870,1850,abc,0.13\n40,857,1930,0.012,0.128\n"), "line 2", "abc"),
         (format!("{TABLE_HEADER}\n20,870,1850,0.03,0.13\n"), "bad.csv: ", "at least 2"),
         ("20,870,1850,0.03,0.13\n".to_string(), "line 1", "header"),
@@ -177,7 +181,8 @@ cells = 300
 fn user_table_from_case_and_range_error() {
     let dir = std::env::temp_dir().join(format!("hxgrid-table-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    std::fs::write(dir.join("oil.csv"), format!("# name: test oil\n{TABLE_HEADER}\n20,870,1850,0.03,0.13\n40,857,1930,0.012,0.128\n60,845,2010,0.006,0.126\n")).unwrap();
+    std::fs::write(dir.join("oil.csv"), format!("# name: test oil\n{TABLE_HEADER}\n20,870,1850,0.03,0.13\n40,857,1930,0.012,0.128\n60,845,2010,0.006,0.126\n"))
+        .unwrap();
     let case = |cold_in: f64| {
         format!(
             r#"

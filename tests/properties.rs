@@ -63,24 +63,31 @@ fn random() -> impl Strategy<Value = Random> {
         (1.0..40.0f64, 1.0..50.0f64, -3.0..1.0f64, -3.0..1.0f64),
         (0.2..30.0f64, 0.005..0.05f64, 0.003..0.03f64, 2i64..150, 1500.0..4500.0f64, -4.0..-1.0f64),
     )
-        .prop_map(|((counterflow, scheme, water_hot, water_cold), (fixed_hot, fixed_cold), (t_cold, dt, lm_hot, lm_cold), (length, d_inner, gap, cells, cp_hot, lmu))| Random {
-            counterflow,
-            scheme,
-            water_hot,
-            water_cold,
-            fixed_hot,
-            fixed_cold,
-            t_cold,
-            dt,
-            m_hot: 10f64.powf(lm_hot),
-            m_cold: 10f64.powf(lm_cold),
-            length,
-            d_inner,
-            gap,
-            cells,
-            cp_hot,
-            mu_hot: 10f64.powf(lmu),
-        })
+        .prop_map(
+            |(
+                (counterflow, scheme, water_hot, water_cold),
+                (fixed_hot, fixed_cold),
+                (t_cold, dt, lm_hot, lm_cold),
+                (length, d_inner, gap, cells, cp_hot, lmu),
+            )| Random {
+                counterflow,
+                scheme,
+                water_hot,
+                water_cold,
+                fixed_hot,
+                fixed_cold,
+                t_cold,
+                dt,
+                m_hot: 10f64.powf(lm_hot),
+                m_cold: 10f64.powf(lm_cold),
+                length,
+                d_inner,
+                gap,
+                cells,
+                cp_hot,
+                mu_hot: 10f64.powf(lmu),
+            },
+        )
 }
 
 proptest! {

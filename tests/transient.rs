@@ -27,7 +27,16 @@ fn step_settles_on_steady_answer() {
         // An explicit integrator on a stiff problem hovers about the steady state within its
         // tolerance, so it is given a tight one here; the implicit one converges exactly.
         let (atol_k, rtol) = if integrator == Integrator::Explicit { (1e-9, 1e-11) } else { (1e-4, 1e-6) };
-        let settings = TransientSettings { cells: 30, duration_s: 3000.0, output_interval_s: 50.0, integrator, atol_k, rtol, wall_heat_capacity_j_mk: c_wall, ..Default::default() };
+        let settings = TransientSettings {
+            cells: 30,
+            duration_s: 3000.0,
+            output_interval_s: 50.0,
+            integrator,
+            atol_k,
+            rtol,
+            wall_heat_capacity_j_mk: c_wall,
+            ..Default::default()
+        };
         let run = simulate(&ex, &inputs, &settings, &mut SilentObserver).unwrap();
         let last = run.samples.last().unwrap();
         let steady = solve_steady(&inputs.apply(&ex, 3000.0), &SteadySettings { cells: 30, ..Default::default() }, &mut SilentObserver).unwrap();
@@ -37,16 +46,12 @@ fn step_settles_on_steady_answer() {
     }
 }
 
-
 /// Energy closure over a whole cold start with a flow upset: heat in − heat out − change in
 /// stored energy (fluids and wall) within 1e-6 of the heat transferred (first law).
 #[test]
 fn energy_closes_over_a_cold_start() {
     let (ex, c_wall) = demo();
-    let inputs = Inputs {
-        cold_flow_kg_s: Signal::Table(vec![(0.0, 0.9), (200.0, 0.9), (210.0, 0.3), (400.0, 0.3), (420.0, 0.9)]),
-        ..Inputs::constant(&ex)
-    };
+    let inputs = Inputs { cold_flow_kg_s: Signal::Table(vec![(0.0, 0.9), (200.0, 0.9), (210.0, 0.3), (400.0, 0.3), (420.0, 0.9)]), ..Inputs::constant(&ex) };
     for integrator in [Integrator::Implicit, Integrator::Explicit] {
         let settings = TransientSettings {
             cells: 40,
@@ -68,6 +73,7 @@ fn energy_closes_over_a_cold_start() {
 }
 
 /// A plain duct: constant properties, fixed film coefficient, volume = flow area.
+#[allow(clippy::too_many_arguments)] // a test builder: each argument is one physical input of the analytic case
 fn duct(length: f64, h: f64, area_per_length: f64, flow_area: f64, m: f64, rho: f64, cp: f64, scheme: Scheme) -> Exchanger {
     let props = Props { density: rho, cp, viscosity: 1e-3, conductivity: 0.6 };
     let stream = |m: f64, t: f64, h: f64| Stream {
@@ -255,7 +261,8 @@ fn flow_stops_and_restarts() {
     let (ex, c_wall) = demo();
     let inputs = Inputs { cold_flow_kg_s: Signal::Table(vec![(0.0, 0.9), (20.0, 0.9), (25.0, 0.0), (300.0, 0.0), (310.0, 0.9)]), ..Inputs::constant(&ex) };
     for integrator in [Integrator::Implicit, Integrator::Explicit] {
-        let settings = TransientSettings { cells: 30, duration_s: 500.0, output_interval_s: 5.0, integrator, wall_heat_capacity_j_mk: c_wall, ..Default::default() };
+        let settings =
+            TransientSettings { cells: 30, duration_s: 500.0, output_interval_s: 5.0, integrator, wall_heat_capacity_j_mk: c_wall, ..Default::default() };
         let run = simulate(&ex, &inputs, &settings, &mut SilentObserver).unwrap();
         for s in &run.samples {
             assert!(s.hot_outlet_C.is_finite() && s.cold_outlet_C.is_finite() && s.max_wall_C.is_finite());
@@ -266,4 +273,3 @@ fn flow_stops_and_restarts() {
         assert!(at(500.0).hot_outlet_C < at(300.0).hot_outlet_C - 20.0, "recovers after restart");
     }
 }
-

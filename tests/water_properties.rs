@@ -27,11 +27,7 @@ fn if97_region1_table5() {
 /// v = 0.542946619e-2, h = 0.263149474e4.
 #[test]
 fn if97_region2_table15() {
-    let rows = [
-        (300.0, 0.0035, 0.394913866e2, 0.254991145e4),
-        (700.0, 0.0035, 0.923015898e2, 0.333568375e4),
-        (700.0, 30.0, 0.542946619e-2, 0.263149474e4),
-    ];
+    let rows = [(300.0, 0.0035, 0.394913866e2, 0.254991145e4), (700.0, 0.0035, 0.923015898e2, 0.333568375e4), (700.0, 30.0, 0.542946619e-2, 0.263149474e4)];
     for (t_k, p_mpa, v, h) in rows {
         let (h_j, props) = direct(p_mpa, t_k - 273.15);
         assert_relative_eq!(1.0 / props.density, v, max_relative = 1e-8);
@@ -49,7 +45,11 @@ fn iapws_transport_check_values() {
         let (mut lo, mut hi) = (0.01, 100.0);
         for _ in 0..200 {
             let mid = 0.5 * (lo + hi);
-            if seuif97::pt(mid, t_c, seuif97::OD) < rho { lo = mid } else { hi = mid }
+            if seuif97::pt(mid, t_c, seuif97::OD) < rho {
+                lo = mid
+            } else {
+                hi = mid
+            }
         }
         0.5 * (lo + hi)
     };

@@ -195,11 +195,7 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
             }
             let hint = near.map(|c| format!("did you mean {c}? ")).unwrap_or_default();
             let here = if path.is_empty() { "at the top level".to_string() } else { format!("in [{}]", path.join(".")) };
-            shape.problems.push(Problem {
-                key: dotted(path, key),
-                line,
-                message: format!("unknown key; {hint}valid keys {here}: {}", valid.join(", ")),
-            });
+            shape.problems.push(Problem { key: dotted(path, key), line, message: format!("unknown key; {hint}valid keys {here}: {}", valid.join(", ")) });
             let mut p = path.clone();
             p.push(key.to_string());
             shape.unknown.push(p);
@@ -227,7 +223,12 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
                     shape.problems.push(Problem {
                         key: dotted(path, key),
                         line,
-                        message: format!("\"{}\" is not valid for the {}.{hint} Valid: {}", s.value(), field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ")),
+                        message: format!(
+                            "\"{}\" is not valid for the {}.{hint} Valid: {}",
+                            s.value(),
+                            field.hint,
+                            words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ")
+                        ),
                     });
                     shape.only_unknown_keys = false;
                 }

@@ -8,8 +8,8 @@ use crate::model::{Arrangement, Exchanger, Stream};
 use crate::solve::transient::{Initial, Inputs, Integrator, Signal, TransientSettings};
 use crate::solve::SteadySettings;
 use crate::transfer::{
-    Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall,
-    WallCorrection, Zukauskas, NU_TUBE_LAMINAR_T,
+    Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall, WallCorrection, Zukauskas,
+    NU_TUBE_LAMINAR_T,
 };
 use std::f64::consts::PI;
 use std::path::Path;
@@ -350,7 +350,10 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
             let depth = bank.rows as f64 * bank.longitudinal_pitch_m;
             if let Some(l) = given {
                 if (l - depth).abs() > 1e-9 * depth.abs().max(1.0) {
-                    c.fail("length_m", format!("{l} m differs from the tube bank's depth rows × longitudinal_pitch_m = {depth} m: omit length_m for a tube bank"));
+                    c.fail(
+                        "length_m",
+                        format!("{l} m differs from the tube bank's depth rows × longitudinal_pitch_m = {depth} m: omit length_m for a tube bank"),
+                    );
                 }
             }
             depth
@@ -450,7 +453,10 @@ fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64
         SignalKind::Table => {
             let (times, values) = (s.times_s.clone().unwrap_or_default(), s.values.clone().unwrap_or_default());
             if times.is_empty() || times.len() != values.len() {
-                c.fail(&format!("{key}.times_s"), format!("times_s ({} entries) and values ({} entries) must be non-empty and of equal length", times.len(), values.len()));
+                c.fail(
+                    &format!("{key}.times_s"),
+                    format!("times_s ({} entries) and values ({} entries) must be non-empty and of equal length", times.len(), values.len()),
+                );
                 return Signal::Constant(before);
             }
             if times.windows(2).any(|w| w[1] <= w[0]) || times.iter().chain(&values).any(|v| !v.is_finite()) {
@@ -500,14 +506,16 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
     if let Geometry::PlaneWall { hot, cold, .. } = geometry {
         for (side, (area, _), film) in [("hot", hot, f.hot.film), ("cold", cold, f.cold.film)] {
             if area.is_none() && film != FilmName::Compact {
-                c.fail(&format!("geometry.{side}_flow_area_m2"), "is missing: a transient needs each stream's flow area to know how much fluid the exchanger holds".into());
+                c.fail(
+                    &format!("geometry.{side}_flow_area_m2"),
+                    "is missing: a transient needs each stream's flow area to know how much fluid the exchanger holds".into(),
+                );
             }
         }
     }
     let snapshots = t.snapshot_times_s.clone().unwrap_or_else(|| (0..=4).map(|k| k as f64 * duration / 4.0).collect());
-    let mut sig = |name: &str, s: &Option<SignalFile>, before: f64, flow: bool| {
-        s.as_ref().map(|s| signal(c, &format!("transient.{name}"), s, before, duration, flow))
-    };
+    let mut sig =
+        |name: &str, s: &Option<SignalFile>, before: f64, flow: bool| s.as_ref().map(|s| signal(c, &format!("transient.{name}"), s, before, duration, flow));
     let hot_inlet_c = sig("hot_inlet_temperature_C", &t.hot_inlet_temperature_C, f.hot.inlet_temperature_C, false);
     let hot_flow_kg_s = sig("hot_mass_flow_kg_s", &t.hot_mass_flow_kg_s, f.hot.mass_flow_kg_s, true);
     let cold_inlet_c = sig("cold_inlet_temperature_C", &t.cold_inlet_temperature_C, f.cold.inlet_temperature_C, false);
@@ -568,9 +576,28 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
     let g = &f.geometry;
     let k = c.positive("geometry.wall_conductivity_W_mK", g.wall_conductivity_W_mK, "W/(m·K)");
     let (kind_name, allowed): (&str, &[&str]) = match g.kind {
-        GeometryKind::DoublePipe => ("double_pipe", &["tube_inner_diameter_m", "tube_outer_diameter_m", "shell_inner_diameter_m", "tube_side", "annulus_heat_diameter"]),
-        GeometryKind::PlaneWall => ("plane_wall", &["area_per_length_m2_m", "wall_thickness_m", "hot_flow_area_m2", "hot_hydraulic_diameter_m", "cold_flow_area_m2", "cold_hydraulic_diameter_m"]),
-        GeometryKind::TubeBank => ("tube_bank", &["tube_inner_diameter_m", "tube_outer_diameter_m", "tube_side", "layout", "transverse_pitch_m", "longitudinal_pitch_m", "rows", "tubes_per_row", "tube_length_m", "tube_circuits"]),
+        GeometryKind::DoublePipe => {
+            ("double_pipe", &["tube_inner_diameter_m", "tube_outer_diameter_m", "shell_inner_diameter_m", "tube_side", "annulus_heat_diameter"])
+        }
+        GeometryKind::PlaneWall => (
+            "plane_wall",
+            &["area_per_length_m2_m", "wall_thickness_m", "hot_flow_area_m2", "hot_hydraulic_diameter_m", "cold_flow_area_m2", "cold_hydraulic_diameter_m"],
+        ),
+        GeometryKind::TubeBank => (
+            "tube_bank",
+            &[
+                "tube_inner_diameter_m",
+                "tube_outer_diameter_m",
+                "tube_side",
+                "layout",
+                "transverse_pitch_m",
+                "longitudinal_pitch_m",
+                "rows",
+                "tubes_per_row",
+                "tube_length_m",
+                "tube_circuits",
+            ],
+        ),
     };
     for (key, given) in geometry_keys(g) {
         if given && !allowed.contains(&key) {
@@ -591,7 +618,10 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
         c.looks_like_mm("geometry.tube_inner_diameter_m", di);
         c.looks_like_mm("geometry.tube_outer_diameter_m", d_o);
         if di >= d_o {
-            c.fail("geometry.tube_inner_diameter_m", format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"));
+            c.fail(
+                "geometry.tube_inner_diameter_m",
+                format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"),
+            );
         }
         (di, d_o)
     };
@@ -615,7 +645,10 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             let ds = c.required("geometry.shell_inner_diameter_m", g.shell_inner_diameter_m, "m", why);
             c.looks_like_mm("geometry.shell_inner_diameter_m", ds);
             if d_o >= ds {
-                c.fail("geometry.shell_inner_diameter_m", format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)"));
+                c.fail(
+                    "geometry.shell_inner_diameter_m",
+                    format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)"),
+                );
             }
             let annulus_equivalent_diameter = g.annulus_heat_diameter == Some(AnnulusDiameter::Equivalent);
             Geometry::DoublePipe { di, d_o, ds, k, tube_side: tube_side(c), annulus_equivalent_diameter }
@@ -730,11 +763,18 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
         c.fail(&key("compact"), "is only used with film = \"compact\": remove the table, or set film = \"compact\"".into());
     }
     if !internal && (s.laminar.is_some() || s.wall_correction.is_some()) {
-        c.fail(&key(if s.laminar.is_some() { "laminar" } else { "wall_correction" }), "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate) only: remove it".into());
+        c.fail(
+            &key(if s.laminar.is_some() { "laminar" } else { "wall_correction" }),
+            "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate) only: remove it".into(),
+        );
     }
     if let (Geometry::TubeBank { .. }, Some(false)) = (geometry, is_tube_side) {
         if internal {
-            c.fail(&key("film"), format!("\"{:?}\" is for flow inside channels; the outside of a tube bank needs film = \"zukauskas\", \"compact\" or \"fixed\"", s.film).to_lowercase());
+            c.fail(
+                &key("film"),
+                format!("\"{:?}\" is for flow inside channels; the outside of a tube bank needs film = \"zukauskas\", \"compact\" or \"fixed\"", s.film)
+                    .to_lowercase(),
+            );
         }
     }
     match s.film {
@@ -747,7 +787,10 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
         }),
         FilmName::Zukauskas => {
             if !matches!((geometry, is_tube_side), (Geometry::TubeBank { .. }, Some(false))) {
-                c.fail(&key("film"), "\"zukauskas\" is for the outside of a tube bank: use geometry kind = \"tube_bank\" with this stream outside the tubes".into());
+                c.fail(
+                    &key("film"),
+                    "\"zukauskas\" is for the outside of a tube bank: use geometry kind = \"tube_bank\" with this stream outside the tubes".into(),
+                );
             }
             FilmSpec::Zukauskas
         }
@@ -774,7 +817,13 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
                     kind => {
                         let fraction = cf.fin_area_fraction.unwrap_or(f64::NAN);
                         if !(fraction > 0.0 && fraction < 1.0) {
-                            c.fail(&ck("fin_area_fraction"), format!("{} is not valid: give the fin share of this side's area, between 0 and 1", cf.fin_area_fraction.map(|v| v.to_string()).unwrap_or_else(|| "missing".into())));
+                            c.fail(
+                                &ck("fin_area_fraction"),
+                                format!(
+                                    "{} is not valid: give the fin share of this side's area, between 0 and 1",
+                                    cf.fin_area_fraction.map(|v| v.to_string()).unwrap_or_else(|| "missing".into())
+                                ),
+                            );
                         }
                         let t = fin_needed(c, "fin_thickness_m", cf.fin_thickness_m);
                         let kf = fin_needed(c, "fin_conductivity_W_mK", cf.fin_conductivity_W_mK);
@@ -829,7 +878,10 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
     let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
     let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);
     if !(fouling_m2k_w.is_finite() && (0.0..=1.0).contains(&fouling_m2k_w)) {
-        c.fail(&key("fouling_m2K_W"), format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001 (at most 1)"));
+        c.fail(
+            &key("fouling_m2K_W"),
+            format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001 (at most 1)"),
+        );
     } else if fouling_m2k_w > 0.01 {
         c.warnings.push(format!("{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units"));
     }
@@ -888,12 +940,7 @@ pub fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> {
             return Some(o.as_str());
         }
     }
-    options
-        .iter()
-        .map(|o| (distance(&w, &o.to_lowercase()), o))
-        .filter(|(d, o)| *d <= 3.max(o.len() / 3))
-        .min_by_key(|(d, _)| *d)
-        .map(|(_, o)| o.as_str())
+    options.iter().map(|o| (distance(&w, &o.to_lowercase()), o)).filter(|(d, o)| *d <= 3.max(o.len() / 3)).min_by_key(|(d, _)| *d).map(|(_, o)| o.as_str())
 }
 
 fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> Option<FluidChoice> {
@@ -1040,7 +1087,10 @@ impl Case {
                     flow_area_m2: Some(bank.frontal_area_m2),
                     hydraulic_diameter_m: Some(d_o),
                     // Gas between the tubes: the bank's volume less the tubes'.
-                    volume_per_length_m2: Some(*tubes_per_row as f64 * tube_length * (bank.transverse_pitch_m * bank.longitudinal_pitch_m - PI * d_o * d_o / 4.0) / bank.longitudinal_pitch_m),
+                    volume_per_length_m2: Some(
+                        *tubes_per_row as f64 * tube_length * (bank.transverse_pitch_m * bank.longitudinal_pitch_m - PI * d_o * d_o / 4.0)
+                            / bank.longitudinal_pitch_m,
+                    ),
                     ..Channel::duct(1.0, 1.0, PI * d_o * tubes_per_length, NU_TUBE_LAMINAR_T, l)
                 };
                 let wall = Wall::Tube { inner_diameter_m: *di, outer_diameter_m: d_o, conductivity_w_mk: *k, tube_length_per_length: tubes_per_length };
@@ -1082,13 +1132,5 @@ fn build_stream(s: &StreamSpec, mut channel: Channel, geometry: &Geometry) -> St
             Arc::new(surface.clone())
         }
     };
-    Stream {
-        fluid,
-        mass_flow_kg_s: s.mass_flow_kg_s,
-        inlet_c: s.inlet_c,
-        inlet_pressure_pa: s.pressure_pa,
-        fouling_m2k_w: s.fouling_m2k_w,
-        film,
-        channel,
-    }
+    Stream { fluid, mass_flow_kg_s: s.mass_flow_kg_s, inlet_c: s.inlet_c, inlet_pressure_pa: s.pressure_pa, fouling_m2k_w: s.fouling_m2k_w, film, channel }
 }

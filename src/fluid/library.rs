@@ -26,12 +26,7 @@ pub fn catalogue() -> Vec<(String, String)> {
         ("table".to_string(), "your own property table file (table_file = \"…\"; format in `hxgrid props --help`)".to_string()),
     ];
     for (name, text) in TABLES {
-        let desc = text
-            .lines()
-            .find_map(|l| l.strip_prefix("# description:"))
-            .map(str::trim)
-            .unwrap_or("")
-            .to_string();
+        let desc = text.lines().find_map(|l| l.strip_prefix("# description:")).map(str::trim).unwrap_or("").to_string();
         out.push((name.to_string(), desc));
     }
     out
@@ -39,10 +34,7 @@ pub fn catalogue() -> Vec<(String, String)> {
 
 /// The built-in table named `name`, parsed.
 pub fn builtin_table(name: &str) -> Option<TableFluid> {
-    TABLES
-        .iter()
-        .find(|(n, _)| *n == name)
-        .map(|(n, text)| TableFluid::parse(text, &format!("built-in {n}")).expect("built-in tables are valid (tested)"))
+    TABLES.iter().find(|(n, _)| *n == name).map(|(n, text)| TableFluid::parse(text, &format!("built-in {n}")).expect("built-in tables are valid (tested)"))
 }
 
 /// Names a case may use, for "did you mean" suggestions.
@@ -51,6 +43,8 @@ pub fn names() -> Vec<String> {
 }
 
 /// How a fluid is chosen, independent of the case-file syntax.
+// Built once per case and never in a hot loop: boxing the table would buy nothing.
+#[allow(clippy::large_enum_variant)]
 #[derive(Debug, Clone)]
 pub enum FluidChoice {
     /// IAPWS-IF97 water in the given single phase.
@@ -74,10 +68,7 @@ impl FluidChoice {
 
 /// Parse a user's table file.
 pub fn load_table(path: &std::path::Path) -> Result<TableFluid, TableError> {
-    let text = std::fs::read_to_string(path).map_err(|e| TableError {
-        file: path.display().to_string(),
-        line: 0,
-        problem: format!("cannot read the file: {e}"),
-    })?;
+    let text =
+        std::fs::read_to_string(path).map_err(|e| TableError { file: path.display().to_string(), line: 0, problem: format!("cannot read the file: {e}") })?;
     TableFluid::parse(&text, &path.display().to_string())
 }

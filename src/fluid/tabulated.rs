@@ -58,10 +58,7 @@ impl Column {
     #[cfg(test)]
     fn eval(&self, i: usize, u: f64, dt: f64) -> f64 {
         let (u2, u3) = (u * u, u * u * u);
-        (2.0 * u3 - 3.0 * u2 + 1.0) * self.y[i]
-            + (u3 - 2.0 * u2 + u) * dt * self.m[i]
-            + (-2.0 * u3 + 3.0 * u2) * self.y[i + 1]
-            + (u3 - u2) * dt * self.m[i + 1]
+        (2.0 * u3 - 3.0 * u2 + 1.0) * self.y[i] + (u3 - 2.0 * u2 + u) * dt * self.m[i] + (-2.0 * u3 + 3.0 * u2) * self.y[i + 1] + (u3 - u2) * dt * self.m[i + 1]
     }
     /// ∫ from node i to u·dt of the interpolant.
     #[inline]
@@ -193,9 +190,11 @@ impl TableFluid {
             }
             let mut row = [0.0; 5];
             for (j, c) in cells.iter().enumerate() {
-                row[j] = c.parse::<f64>().ok().filter(|v| v.is_finite()).ok_or_else(|| {
-                    err(line_no, format!("'{c}' in column {} ({}) is not a finite number", j + 1, HEADER.split(',').nth(j).unwrap()))
-                })?;
+                row[j] = c
+                    .parse::<f64>()
+                    .ok()
+                    .filter(|v| v.is_finite())
+                    .ok_or_else(|| err(line_no, format!("'{c}' in column {} ({}) is not a finite number", j + 1, HEADER.split(',').nth(j).unwrap())))?;
             }
             for (j, name) in HEADER.split(',').enumerate().skip(1) {
                 if row[j] <= 0.0 {
@@ -204,7 +203,10 @@ impl TableFluid {
             }
             if let Some(prev) = rows.last() {
                 if row[0] <= prev[0] {
-                    return Err(err(line_no, format!("temperature {} °C does not increase (previous row {} °C): rows must be in strictly increasing temperature", row[0], prev[0])));
+                    return Err(err(
+                        line_no,
+                        format!("temperature {} °C does not increase (previous row {} °C): rows must be in strictly increasing temperature", row[0], prev[0]),
+                    ));
                 }
             }
             rows.push(row);

@@ -40,12 +40,7 @@ impl Water {
         let p_mpa = pressure_pa * 1e-6;
         // Region 1/2 boundary by saturation exists from the triple point to the critical point.
         if !(0.000_611_657..=22.064).contains(&p_mpa) {
-            return Err(FluidError::PressureOutOfRange {
-                fluid: "water".into(),
-                pressure_bar: pressure_pa * 1e-5,
-                min_bar: 0.00612,
-                max_bar: 220.64,
-            });
+            return Err(FluidError::PressureOutOfRange { fluid: "water".into(), pressure_bar: pressure_pa * 1e-5, min_bar: 0.00612, max_bar: 220.64 });
         }
         let t_sat_c = saturation_temperature_c(pressure_pa);
         let (lo, hi) = match phase {
@@ -84,12 +79,7 @@ pub fn saturation_pressure_pa(t_c: f64) -> f64 {
 /// Properties straight from IF97 at (p in MPa, T in °C), in SI units; h in J/kg.
 pub fn direct(p_mpa: f64, t_c: f64) -> (f64, Props) {
     use seuif97::{pt, OCP, OD, ODV, OH, OTC};
-    let props = Props {
-        density: pt(p_mpa, t_c, OD),
-        cp: pt(p_mpa, t_c, OCP) * 1e3,
-        viscosity: pt(p_mpa, t_c, ODV),
-        conductivity: pt(p_mpa, t_c, OTC),
-    };
+    let props = Props { density: pt(p_mpa, t_c, OD), cp: pt(p_mpa, t_c, OCP) * 1e3, viscosity: pt(p_mpa, t_c, ODV), conductivity: pt(p_mpa, t_c, OTC) };
     (pt(p_mpa, t_c, OH) * 1e3, props)
 }
 

@@ -22,9 +22,9 @@
 pub mod scheme;
 
 use crate::fluid::{Fluid, Props};
+use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 pub use scheme::{Grid, Scheme};
 use std::sync::Arc;
-use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 
 /// Flow arrangement of the two streams.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
@@ -70,15 +70,7 @@ impl Stream {
     /// `heated` is true for the stream taking heat (the cold one).
     pub fn film_at(&self, bulk_c: f64, wall_c: f64, heated: bool) -> (Props, FilmResult) {
         let props = self.fluid.props(bulk_c);
-        let input = FilmInput {
-            channel: &self.channel,
-            mass_flow_kg_s: self.mass_flow_kg_s,
-            props: &props,
-            bulk_c,
-            wall_c,
-            fluid: &*self.fluid,
-            heated,
-        };
+        let input = FilmInput { channel: &self.channel, mass_flow_kg_s: self.mass_flow_kg_s, props: &props, bulk_c, wall_c, fluid: &*self.fluid, heated };
         let mut film = self.film.film(&input);
         // A film coefficient of zero (no heat transfer, or a correlation at zero flow) would
         // make the resistance infinite; a floor far below any real value keeps it finite.
@@ -172,11 +164,7 @@ pub struct CellBalance {
 impl CellBalance {
     /// Steady residuals (W): hot stream, cold stream, wall. All zero at steady state.
     pub fn steady_residual(&self) -> [f64; 3] {
-        [
-            self.hot_release_w - self.hot_to_wall_w,
-            self.cold_gain_w - self.wall_to_cold_w,
-            self.hot_to_wall_w - self.wall_to_cold_w,
-        ]
+        [self.hot_release_w - self.hot_to_wall_w, self.cold_gain_w - self.wall_to_cold_w, self.hot_to_wall_w - self.wall_to_cold_w]
     }
 }
 

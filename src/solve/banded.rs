@@ -99,8 +99,8 @@ impl Banded {
         for k in (0..n).rev() {
             let right = (k + kl + ku).min(n - 1);
             let mut sum = b[k];
-            for j in k + 1..=right {
-                sum -= self.get(k, j) * b[j];
+            for (j, bj) in b.iter().enumerate().take(right + 1).skip(k + 1) {
+                sum -= self.get(k, j) * bj;
             }
             b[k] = sum / self.get(k, k);
         }

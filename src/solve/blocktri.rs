@@ -25,13 +25,7 @@ impl BlockTridiagonal {
     /// Zero matrix of `n` block rows.
     pub fn zeros(n: usize) -> Self {
         let z = Matrix3::zeros();
-        Self {
-            lower: vec![z; n],
-            diag: vec![z; n],
-            upper: vec![z; n],
-            gain: vec![z; n],
-            carry: vec![Vector3::zeros(); n],
-        }
+        Self { lower: vec![z; n], diag: vec![z; n], upper: vec![z; n], gain: vec![z; n], carry: vec![Vector3::zeros(); n] }
     }
 
     /// Number of block rows.
@@ -57,11 +51,8 @@ impl BlockTridiagonal {
         let n = self.len();
         assert_eq!(rhs.len(), n);
         for i in 0..n {
-            let (d, b) = if i == 0 {
-                (self.diag[0], rhs[0])
-            } else {
-                (self.diag[i] - self.lower[i] * self.gain[i - 1], rhs[i] - self.lower[i] * self.carry[i - 1])
-            };
+            let (d, b) =
+                if i == 0 { (self.diag[0], rhs[0]) } else { (self.diag[i] - self.lower[i] * self.gain[i - 1], rhs[i] - self.lower[i] * self.carry[i - 1]) };
             let lu = d.lu();
             self.carry[i] = lu.solve(&b).ok_or(i)?;
             if i + 1 < n {

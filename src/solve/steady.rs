@@ -152,10 +152,10 @@ pub enum SolveError {
 /// Fill residuals; return Σ|r|.
 fn residuals(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) -> f64 {
     let mut sum = 0.0;
-    for i in 0..lay.n {
+    for (i, ri) in r.iter_mut().enumerate().take(lay.n) {
         let res = ex.cell(dx, &lay.cell_temps(x, i)).balance.steady_residual();
-        r[i] = Vector3::new(res[0], res[1], res[2]);
-        sum += r[i].abs().sum();
+        *ri = Vector3::new(res[0], res[1], res[2]);
+        sum += ri.abs().sum();
     }
     sum
 }
@@ -296,11 +296,7 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
 }
 
 /// Solve the steady state of `ex` on `settings.cells` cells.
-pub fn solve_steady(
-    ex: &Exchanger,
-    settings: &SteadySettings,
-    observer: &mut dyn Observer,
-) -> Result<SteadySolution, SolveError> {
+pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dyn Observer) -> Result<SteadySolution, SolveError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     let lay = Grid { arrangement: ex.arrangement, n, scheme: ex.scheme, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };
@@ -309,9 +305,7 @@ pub fn solve_steady(
     // with a stream's ṁ·|h|: a stream with 10⁶ times the other's capacity would otherwise
     // never meet a tolerance relative to the duty. Converge at whichever is larger.
     let roundoff = {
-        let size = |s: &crate::model::Stream| {
-            s.mass_flow_kg_s * (s.fluid.enthalpy(ex.hot.inlet_c).abs() + s.fluid.enthalpy(ex.cold.inlet_c).abs())
-        };
+        let size = |s: &crate::model::Stream| s.mass_flow_kg_s * (s.fluid.enthalpy(ex.hot.inlet_c).abs() + s.fluid.enthalpy(ex.cold.inlet_c).abs());
         16.0 * f64::EPSILON * n as f64 * (size(&ex.hot) + size(&ex.cold))
     };
     let target = (settings.tolerance * scale).max(roundoff);
@@ -324,9 +318,7 @@ pub fn solve_steady(
     let mut iterations = 0;
     while norm > target {
         if iterations >= settings.max_iterations || !norm.is_finite() {
-            let worst = (0..n)
-                .max_by(|&a, &b| r[a].abs().sum().partial_cmp(&r[b].abs().sum()).unwrap_or(std::cmp::Ordering::Equal))
-                .unwrap_or(0);
+            let worst = (0..n).max_by(|&a, &b| r[a].abs().sum().partial_cmp(&r[b].abs().sum()).unwrap_or(std::cmp::Ordering::Equal)).unwrap_or(0);
             return Err(SolveError::NotConverged {
                 iterations,
                 residual: norm / scale,
@@ -512,7 +504,11 @@ mod tests {
                             let fd = (r0[i] - r1[i]) / 2e-4;
                             for row in 0..3 {
                                 let a = dense(i, row, j, c).unwrap_or(0.0);
-                                assert!((a - fd[row]).abs() < 1e-6 * (1.0 + fd[row].abs()), "{arr:?} {scheme:?} cell {i} var {j}.{c} row {row}: {a} vs {}", fd[row]);
+                                assert!(
+                                    (a - fd[row]).abs() < 1e-6 * (1.0 + fd[row].abs()),
+                                    "{arr:?} {scheme:?} cell {i} var {j}.{c} row {row}: {a} vs {}",
+                                    fd[row]
+                                );
                             }
                         }
                     }

@@ -137,10 +137,7 @@ impl Inputs {
     }
 
     fn breakpoints(&self) -> Vec<f64> {
-        [&self.hot_inlet_c, &self.hot_flow_kg_s, &self.cold_inlet_c, &self.cold_flow_kg_s]
-            .iter()
-            .flat_map(|s| s.breakpoints())
-            .collect()
+        [&self.hot_inlet_c, &self.hot_flow_kg_s, &self.cold_inlet_c, &self.cold_flow_kg_s].iter().flat_map(|s| s.breakpoints()).collect()
     }
 }
 
@@ -416,12 +413,7 @@ pub enum TransientError {
 }
 
 /// Run a transient simulation of `ex` under `inputs`.
-pub fn simulate(
-    ex: &Exchanger,
-    inputs: &Inputs,
-    settings: &TransientSettings,
-    observer: &mut dyn TransientObserver,
-) -> Result<TransientRun, TransientError> {
+pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, observer: &mut dyn TransientObserver) -> Result<TransientRun, TransientError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     // Initial temperatures.
@@ -445,7 +437,7 @@ pub fn simulate(
         x0.iter().map(|x| ex.hot.fluid.props(x[0]).density * v_hot * dx).collect::<Vec<f64>>(),
         x0.iter().map(|x| ex.cold.fluid.props(x[1]).density * v_cold * dx).collect::<Vec<f64>>(),
     ];
-    if !(settings.wall_heat_capacity_j_mk > 0.0) {
+    if settings.wall_heat_capacity_j_mk.is_nan() || settings.wall_heat_capacity_j_mk <= 0.0 {
         return Err(TransientError::Missing("the wall heat capacity must be positive: give the wall's density and specific heat".into()));
     }
     let model = Model { ex, inputs, n, dx, mass, wall_capacity: settings.wall_heat_capacity_j_mk * dx };
@@ -457,23 +449,14 @@ pub fn simulate(
     }
     // Stop times: outputs and input breakpoints.
     let t_end = settings.duration_s;
-    let mut stops: Vec<f64> = (1..)
-        .map(|k| k as f64 * settings.output_interval_s)
-        .take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0))
-        .collect();
+    let mut stops: Vec<f64> = (1..).map(|k| k as f64 * settings.output_interval_s).take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0)).collect();
     let outputs: Vec<f64> = stops.clone();
     stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
     stops.push(t_end);
     stops.sort_by(|a, b| a.total_cmp(b));
     stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
 
-    let mut run = TransientRun {
-        samples: Vec::new(),
-        snapshots: Vec::new(),
-        final_snapshot: model.sample(0.0, &y).1,
-        stats: Stats::default(),
-        cells: n,
-    };
+    let mut run = TransientRun { samples: Vec::new(), snapshots: Vec::new(), final_snapshot: model.sample(0.0, &y).1, stats: Stats::default(), cells: n };
     let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<(), TransientError> {
         let (sample, snap) = model.sample(t, y);
         model.check(t, &snap)?;
@@ -572,10 +555,7 @@ fn explicit_segment(
 ) -> Result<(DVector<f64>, ode_solvers::dop_shared::Stats), TransientError> {
     // Sparse output (the state at every accepted step; the last is the segment end): the
     // dense-output mode did not give us the segment end state in this use.
-    let scale = [
-        1.0 / model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp,
-        1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp,
-    ];
+    let scale = [1.0 / model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp, 1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp];
     let system = OdeSystem { model, scale };
     let z0 = system.scale_state(y0);
     let mut stepper = ode_solvers::Dopri5::from_param(
@@ -703,9 +683,9 @@ impl Bdf2 {
                 .collect();
             let scale = g.iter().map(|v| v.abs().max()).fold(0.0, f64::max);
             let mut newton = self.jac.clone().expect("jacobian set above").scaled(-bh);
-            for i in 0..n {
-                newton.add_diagonal(i, 0, model.mass[0][i] * model.ex.hot.fluid.props(x[i][0]).cp);
-                newton.add_diagonal(i, 1, -model.mass[1][i] * model.ex.cold.fluid.props(x[i][1]).cp);
+            for (i, xi) in x.iter().enumerate().take(n) {
+                newton.add_diagonal(i, 0, model.mass[0][i] * model.ex.hot.fluid.props(xi[0]).cp);
+                newton.add_diagonal(i, 1, -model.mass[1][i] * model.ex.cold.fluid.props(xi[1]).cp);
                 newton.add_diagonal(i, 2, model.wall_capacity);
             }
             if newton.solve(&mut g).is_err() {
@@ -774,11 +754,7 @@ enum StepOutcome {
 /// Lagrange extrapolation of the stored temperature profiles to time `t`.
 fn extrapolate(hist: &[(f64, Vec<Vector3<f64>>)], t: f64) -> Vec<Vector3<f64>> {
     let k = hist.len();
-    let weights: Vec<f64> = (0..k)
-        .map(|j| {
-            (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - hist[m].0) / (hist[j].0 - hist[m].0))
-        })
-        .collect();
+    let weights: Vec<f64> = (0..k).map(|j| (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - hist[m].0) / (hist[j].0 - hist[m].0))).collect();
     let n = hist[0].1.len();
     (0..n).map(|i| (0..k).fold(Vector3::zeros(), |acc, j| acc + hist[j].1[i] * weights[j])).collect()
 }

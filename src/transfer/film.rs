@@ -272,8 +272,7 @@ impl FilmCorrelation for InternalFlow {
             WallCorrection::None => {}
             WallCorrection::Viscosity => {
                 // Sieder–Tate correlations already carry the ratio: never apply it twice.
-                let included = (re >= RE_TURBULENT && self.turbulent == Turbulent::SiederTate)
-                    || (re <= RE_LAMINAR && self.laminar == Laminar::SiederTate);
+                let included = (re >= RE_TURBULENT && self.turbulent == Turbulent::SiederTate) || (re <= RE_LAMINAR && self.laminar == Laminar::SiederTate);
                 if !included {
                     nu *= mu_ratio.powf(0.14);
                 }
@@ -291,9 +290,7 @@ impl FilmCorrelation for InternalFlow {
         FilmResult::bare(nu * i.props.conductivity / d_heat, Some(re), Some(nu), ok)
     }
     fn uses_wall_temperature(&self) -> bool {
-        self.wall_correction != WallCorrection::None
-            || matches!(self.laminar, Laminar::SiederTate)
-            || matches!(self.turbulent, Turbulent::SiederTate)
+        self.wall_correction != WallCorrection::None || matches!(self.laminar, Laminar::SiederTate) || matches!(self.turbulent, Turbulent::SiederTate)
     }
     fn validity(&self) -> String {
         let lam = match self.laminar {

@@ -10,8 +10,8 @@ pub mod friction;
 mod wall;
 
 pub use film::{
-    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski,
-    InternalFlow, Laminar, Layout, TubeBank, Turbulent, WallCorrection, Zukauskas,
+    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski, InternalFlow, Laminar, Layout, TubeBank,
+    Turbulent, WallCorrection, Zukauskas,
 };
 pub use fin::Fin;
 pub use wall::Wall;

@@ -45,9 +45,7 @@ impl Wall {
             Wall::Tube { inner_diameter_m, outer_diameter_m, conductivity_w_mk, tube_length_per_length } => {
                 (outer_diameter_m / inner_diameter_m).ln() / (2.0 * std::f64::consts::PI * conductivity_w_mk * tube_length_per_length)
             }
-            Wall::Plane { thickness_m, conductivity_w_mk, area_per_length_m } => {
-                thickness_m / (conductivity_w_mk * area_per_length_m)
-            }
+            Wall::Plane { thickness_m, conductivity_w_mk, area_per_length_m } => thickness_m / (conductivity_w_mk * area_per_length_m),
         }
     }
 }
