@@ -36,9 +36,12 @@ pub enum Command {
     Run {
         /// Case file (TOML).
         case: PathBuf,
-        /// Results folder (default: output/<case name>). Replaced only when the new results are complete.
+        /// Results folder (default: output/<case name>). Only a folder hxgrid wrote is replaced, and only when the new results are complete.
         #[arg(long)]
         out: Option<PathBuf>,
+        /// Write every cell to profiles.csv (by default above 20 000 cells every k-th cell is written).
+        #[arg(long)]
+        all_cells: bool,
         /// Also run a grid study with this many levels (N, 2N, 4N, …; at least 3 for an observed order).
         #[arg(long, value_name = "LEVELS", value_parser = clap::value_parser!(u32).range(2..=12))]
         grid_study: Option<u32>,

@@ -15,4 +15,5 @@ pub mod results;
 pub mod scenario;
 pub mod solve;
 pub mod study;
+pub mod text;
 pub mod transfer;

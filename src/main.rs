@@ -5,11 +5,33 @@ mod cli;
 use clap::Parser;
 use cli::{Cli, Command};
 use hxgrid::case::{self, Case, CaseError};
+use hxgrid::output::WriteOptions;
 use hxgrid::results::SteadyReport;
 use hxgrid::solve::Observer;
 use hxgrid::study::{self, RatingOptions};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+
+/// `println!` that ends the program quietly when standard output is closed early
+/// (`hxgrid run … | head -1`): a broken pipe is a normal end (exit 0), any other failure
+/// to print is an output error (exit 5). Results are always written before they are printed.
+macro_rules! outln {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        if let Err(e) = writeln!(std::io::stdout(), $($arg)*) {
+            std::process::exit(if e.kind() == std::io::ErrorKind::BrokenPipe { 0 } else { i32::from(EXIT_OUTPUT) });
+        }
+    }};
+}
+
+/// `eprintln!` for messages: control characters escaped, lines and length capped (a case
+/// file's text can reach a message), and never a panic on a closed standard error.
+macro_rules! errln {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), "{}", hxgrid::text::safe_message(&format!($($arg)*), 600, 200));
+    }};
+}
 
 const EXIT_INPUT: u8 = 3;
 const EXIT_SOLVER: u8 = 4;
@@ -18,13 +40,13 @@ const EXIT_OUTPUT: u8 = 5;
 fn main() -> ExitCode {
     let args = Cli::parse();
     match args.command {
-        Command::Run { case, out, grid_study, quiet } => run(&case, out, grid_study.map(|g| g as usize), quiet),
+        Command::Run { case, out, grid_study, all_cells, quiet } => run(&case, out, grid_study.map(|g| g as usize), WriteOptions { all_cells }, quiet),
         Command::Simulate { case, out, quiet } => simulate(&case, out, quiet),
         Command::Check { case } => check(&case),
         Command::New { path } => new_case(&path),
         Command::Fluids => {
             for (name, desc) in hxgrid::fluid::library::catalogue() {
-                println!("{name:<22} {desc}");
+                outln!("{name:<22} {desc}");
             }
             ExitCode::SUCCESS
         }
@@ -35,7 +57,7 @@ fn main() -> ExitCode {
 fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64>, from: Option<f64>, to: Option<f64>, step: Option<f64>) -> ExitCode {
     use hxgrid::fluid::library::{self, FluidChoice};
     let bad = |msg: String| {
-        eprintln!("error: {msg}");
+        errln!("error: {msg}");
         ExitCode::from(EXIT_INPUT)
     };
     let choice = match (&fluid, &table) {
@@ -80,17 +102,17 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
     if !(step.is_finite() && step > 0.0) {
         return bad(format!("--step {step} must be a positive number of kelvin"));
     }
-    println!("{} at {:.5} bar (valid {:.2} … {:.2} °C)", f.name(), p_pa * 1e-5, r.min_c, r.max_c);
+    outln!("{} at {:.5} bar (valid {:.2} … {:.2} °C)", f.name(), p_pa * 1e-5, r.min_c, r.max_c);
     if let FluidChoice::Table(t) = &choice {
-        println!("source: {}", t.source());
+        outln!("source: {}", t.source());
     }
-    println!("{:>10} {:>12} {:>12} {:>13} {:>11} {:>9} {:>14}", "T (°C)", "ρ (kg/m³)", "cp (J/kgK)", "μ (Pa·s)", "k (W/mK)", "Pr", "h − h(T₀) (kJ/kg)");
+    outln!("{:>10} {:>12} {:>12} {:>13} {:>11} {:>9} {:>14}", "T (°C)", "ρ (kg/m³)", "cp (J/kgK)", "μ (Pa·s)", "k (W/mK)", "Pr", "h − h(T₀) (kJ/kg)");
     let h0 = f.enthalpy(lo);
     let n = ((hi - lo) / step).floor() as usize;
     for i in 0..=n.min(100_000) {
         let t = (lo + step * i as f64).min(hi);
         let p = f.props(t);
-        println!(
+        outln!(
             "{:>10.3} {:>12.4} {:>12.2} {:>13.5e} {:>11.5} {:>9.4} {:>14.4}",
             t,
             p.density,
@@ -107,8 +129,8 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
 fn load(path: &Path) -> Result<Case, ExitCode> {
     case::load(path).map_err(|e| {
         match &e {
-            CaseError::Invalid { .. } => eprintln!("error: invalid case {e}"),
-            _ => eprintln!("error: {e}"),
+            CaseError::Invalid { .. } => errln!("error: invalid case {e}"),
+            _ => errln!("error: {e}"),
         }
         ExitCode::from(EXIT_INPUT)
     })
@@ -116,7 +138,7 @@ fn load(path: &Path) -> Result<Case, ExitCode> {
 
 fn print_warnings(case: &Case) {
     for w in &case.warnings {
-        eprintln!("warning: {w}");
+        errln!("warning: {w}");
     }
 }
 
@@ -124,7 +146,7 @@ fn check(path: &Path) -> ExitCode {
     match load(path) {
         Ok(case) => {
             print_warnings(&case);
-            println!("{}: valid ({} case \"{}\", {} cells)", path.display(), case.arrangement.as_str(), case.name, case.solver.cells);
+            outln!("{}: valid ({} case \"{}\", {} cells)", path.display(), case.arrangement.as_str(), case.name, case.solver.cells);
             ExitCode::SUCCESS
         }
         Err(code) => code,
@@ -133,16 +155,16 @@ fn check(path: &Path) -> ExitCode {
 
 fn new_case(path: &Path) -> ExitCode {
     if path.exists() {
-        eprintln!("error: {} already exists; hxgrid new never overwrites a file: choose another name", path.display());
+        errln!("error: {} already exists; hxgrid new never overwrites a file: choose another name", path.display());
         return ExitCode::from(EXIT_INPUT);
     }
     match std::fs::write(path, case::STARTER) {
         Ok(()) => {
-            println!("wrote {} — edit it, then: hxgrid run {}", path.display(), path.display());
+            outln!("wrote {} — edit it, then: hxgrid run {}", path.display(), path.display());
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprintln!("error: cannot write {}: {e}", path.display());
+            errln!("error: cannot write {}: {e}", path.display());
             ExitCode::from(EXIT_OUTPUT)
         }
     }
@@ -155,25 +177,43 @@ struct Progress {
 impl Observer for Progress {
     fn iteration(&mut self, k: usize, residual: f64) {
         if !self.quiet {
-            eprintln!("  Newton iteration {k:>2}: relative residual {residual:.3e}");
+            errln!("  Newton iteration {k:>2}: relative residual {residual:.3e}");
         }
     }
 }
 
-fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, quiet: bool) -> ExitCode {
+fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, write: WriteOptions, quiet: bool) -> ExitCode {
     let case = match load(path) {
         Ok(c) => c,
         Err(code) => return code,
     };
     print_warnings(&case);
+    let dir = out.unwrap_or_else(|| Path::new("output").join(&case.name));
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
     let exchanger = case.build();
     let options = RatingOptions { study_levels: grid_study };
     let report = match study::rate(&case.name, &exchanger, &case.solver, &options, &mut Progress { quiet }) {
         Ok(r) => r,
         Err(e) => return solver_failed(&e),
     };
-    let dir = out.unwrap_or_else(|| Path::new("output").join(&case.name));
-    finish(hxgrid::output::write_steady(&report, &dir), quiet, || print_report(&report))
+    let written = hxgrid::output::write_steady(&report, &dir, write);
+    let stride = hxgrid::output::profile_stride(report.profile.len(), write);
+    finish(written, quiet, || {
+        print_report(&report);
+        if stride > 1 {
+            outln!("\nprofiles.csv holds every {stride}th of the {} cells (and the last); run with --all-cells to write every cell", report.profile.len());
+        }
+    })
+}
+
+/// Refuse, before any work, a destination hxgrid may not replace.
+fn destination_ok(dir: &Path) -> Result<(), ExitCode> {
+    hxgrid::output::check_destination(dir).map_err(|e| {
+        errln!("error: {e}");
+        ExitCode::from(EXIT_OUTPUT)
+    })
 }
 
 /// Map a write result to the exit code, printing the report and the files unless quiet.
@@ -182,15 +222,15 @@ fn finish(written: Result<Vec<PathBuf>, hxgrid::output::OutputError>, quiet: boo
         Ok(files) => {
             if !quiet {
                 print();
-                println!("\nwrote:");
+                outln!("\nwrote:");
                 for f in files {
-                    println!("  {}", f.display());
+                    outln!("  {}", f.display());
                 }
             }
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprintln!("error: {e}");
+            errln!("error: {e}");
             ExitCode::from(EXIT_OUTPUT)
         }
     }
@@ -198,7 +238,7 @@ fn finish(written: Result<Vec<PathBuf>, hxgrid::output::OutputError>, quiet: boo
 
 /// Report a solver failure (nothing was written).
 fn solver_failed(e: &dyn std::fmt::Display) -> ExitCode {
-    eprintln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
+    errln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
     ExitCode::from(EXIT_SOLVER)
 }
 
@@ -221,12 +261,16 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     };
     print_warnings(&case);
     let Some(spec) = &case.transient else {
-        eprintln!(
+        errln!(
             "error: {} has no [transient] section: add one (duration_s, wall_density_kg_m3, wall_specific_heat_J_kgK, and optional schedules; see README) or use `hxgrid run` for the steady state",
             path.display()
         );
         return ExitCode::from(EXIT_INPUT);
     };
+    let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-transient", case.name)));
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
     let exchanger = case.build();
     let settings = spec.settings_for(&exchanger);
     let inputs = spec.inputs(&exchanger);
@@ -247,17 +291,16 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         Ok(r) => r,
         Err(e) => return solver_failed(&e),
     };
-    let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-transient", case.name)));
     finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report))
 }
 
 fn print_transient(r: &hxgrid::scenario::TransientReport) {
-    println!("\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
-    println!("  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
+    outln!("\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
+    outln!("  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
     let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
-    println!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
+    outln!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
     for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {
-        println!(
+        outln!(
             "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16.2e}",
             name,
             o.initial_C,
@@ -269,61 +312,70 @@ fn print_transient(r: &hxgrid::scenario::TransientReport) {
             o.difference_from_steady_K
         );
     }
-    println!("\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
-    println!("energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
-    println!(
+    outln!("\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
+    outln!("energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
+    outln!(
         "steps {} (rejected {}), Jacobians {}, right-hand sides {}",
-        r.stats.steps, r.stats.rejected_steps, r.stats.jacobian_evaluations, r.stats.rhs_evaluations
+        r.stats.steps,
+        r.stats.rejected_steps,
+        r.stats.jacobian_evaluations,
+        r.stats.rhs_evaluations
     );
-    println!("\nCaution: {}", r.caution);
+    outln!("\nCaution: {}", r.caution);
 }
 
 fn print_report(r: &SteadyReport) {
     let l = &r.lumped;
-    println!("\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
-    println!("  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
-    println!("\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
-    println!("{:<22}{:>16.1}{:>16.1}{:>11.2}%", "duty (W)", r.duty_W, l.duty_w, r.grid_vs_lumped.duty_difference_percent);
-    println!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "hot outlet (°C)", r.hot_outlet_C, l.hot_outlet_c, r.grid_vs_lumped.hot_outlet_difference_K);
-    println!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "cold outlet (°C)", r.cold_outlet_C, l.cold_outlet_c, r.grid_vs_lumped.cold_outlet_difference_K);
-    println!("{:<22}{:>16.2}{:>16.2}{:>11.2}%", "UA (W/K)", r.UA_W_K, l.ua_w_k, r.grid_vs_lumped.ua_difference_percent);
-    println!("{:<22}{:>16.5}{:>16.5}", "effectiveness", r.effectiveness, l.effectiveness);
-    println!("{:<22}{:>16.5}{:>16.5}", "NTU", r.ntu, l.ntu);
-    println!("{:<22}{:>16.5}{:>16.5}", "capacity ratio", r.capacity_ratio, l.capacity_ratio);
+    outln!("\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+    outln!("  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
+    outln!("\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
+    outln!("{:<22}{:>16.1}{:>16.1}{:>11.2}%", "duty (W)", r.duty_W, l.duty_w, r.grid_vs_lumped.duty_difference_percent);
+    outln!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "hot outlet (°C)", r.hot_outlet_C, l.hot_outlet_c, r.grid_vs_lumped.hot_outlet_difference_K);
+    outln!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "cold outlet (°C)", r.cold_outlet_C, l.cold_outlet_c, r.grid_vs_lumped.cold_outlet_difference_K);
+    outln!("{:<22}{:>16.2}{:>16.2}{:>11.2}%", "UA (W/K)", r.UA_W_K, l.ua_w_k, r.grid_vs_lumped.ua_difference_percent);
+    outln!("{:<22}{:>16.5}{:>16.5}", "effectiveness", r.effectiveness, l.effectiveness);
+    outln!("{:<22}{:>16.5}{:>16.5}", "NTU", r.ntu, l.ntu);
+    outln!("{:<22}{:>16.5}{:>16.5}", "capacity ratio", r.capacity_ratio, l.capacity_ratio);
     if let (Some(a), Some(b)) = (r.lmtd_K, l.lmtd_k) {
-        println!("{:<22}{:>16.4}{:>16.4}", "LMTD (K)", a, b);
+        outln!("{:<22}{:>16.4}{:>16.4}", "LMTD (K)", a, b);
     }
     let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
-    println!("{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
-    println!("{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
-    println!("\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
+    outln!("{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
+    outln!("{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
+    outln!("\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
     if let Some(g) = &r.grid_error_estimate {
-        println!(
+        outln!(
             "estimated grid error (vs {} cells, Richardson order {}): duty {:.3e} W, hot outlet {:.2e} K, cold outlet {:.2e} K",
-            g.coarse_cells, g.order, g.estimated_error.duty_w, g.estimated_error.hot_outlet_c, g.estimated_error.cold_outlet_c
+            g.coarse_cells,
+            g.order,
+            g.estimated_error.duty_w,
+            g.estimated_error.hot_outlet_c,
+            g.estimated_error.cold_outlet_c
         );
     }
     if let Some(s) = &r.grid_study {
-        println!("\ngrid study:");
-        println!("{:>10}{:>18}{:>16}{:>16}", "cells", "duty (W)", "hot out (°C)", "cold out (°C)");
+        outln!("\ngrid study:");
+        outln!("{:>10}{:>18}{:>16}{:>16}", "cells", "duty (W)", "hot out (°C)", "cold out (°C)");
         for lv in &s.levels {
-            println!("{:>10}{:>18.6}{:>16.8}{:>16.8}", lv.cells, lv.values.duty_w, lv.values.hot_outlet_c, lv.values.cold_outlet_c);
+            outln!("{:>10}{:>18.6}{:>16.8}{:>16.8}", lv.cells, lv.values.duty_w, lv.values.hot_outlet_c, lv.values.cold_outlet_c);
         }
         let fmt = |o: Option<f64>| o.map(|p| format!("{p:.3}")).unwrap_or_else(|| "n/a (round-off)".into());
-        println!(
+        outln!(
             "observed order: duty {}, hot outlet {}, cold outlet {} (scheme: {})",
             fmt(s.observed_order.duty),
             fmt(s.observed_order.hot_outlet),
             fmt(s.observed_order.cold_outlet),
             s.formal_order
         );
-        println!(
+        outln!(
             "Richardson extrapolation: duty {:.6} W, hot outlet {:.8} °C, cold outlet {:.8} °C",
-            s.extrapolated.duty_w, s.extrapolated.hot_outlet_c, s.extrapolated.cold_outlet_c
+            s.extrapolated.duty_w,
+            s.extrapolated.hot_outlet_c,
+            s.extrapolated.cold_outlet_c
         );
     }
     for w in &r.warnings {
-        println!("warning: {w}");
+        outln!("warning: {w}");
     }
-    println!("\nCaution: {}", r.caution);
+    outln!("\nCaution: {}", r.caution);
 }

@@ -390,12 +390,21 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         c.fail("solver.max_iterations", format!("{max_iterations} is not valid: use a whole number from 1 to 10 000"));
     }
     let transient = f.transient.as_ref().map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize));
+    let name = match &f.name {
+        Some(given) => {
+            if let Err(why) = check_name(given) {
+                c.fail("name", format!("{} {why}", crate::text::quote(given, 40)));
+            }
+            given.clone()
+        }
+        None => name_from_file(default_name),
+    };
     if !c.problems.is_empty() {
         return Err(c.problems);
     }
     Ok(Case {
         transient,
-        name: f.name.clone().unwrap_or_else(|| default_name.to_string()),
+        name,
         arrangement: f.arrangement,
         length_m,
         geometry,
@@ -409,6 +418,38 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         },
         warnings: c.warnings,
     })
+}
+
+/// Longest case name, characters.
+pub const NAME_MAX: usize = 100;
+
+/// A case name is a label that becomes a folder under `output/`: letters, digits, `-`, `_`
+/// and `.` (not first), at most [`NAME_MAX`] characters, so it can never name a path
+/// elsewhere (`../src`, `/etc`, `.`, an empty name).
+pub fn check_name(name: &str) -> Result<(), String> {
+    let ok_char = |c: char| c.is_ascii_alphanumeric() || c == '-' || c == '_' || c == '.';
+    if name.is_empty() {
+        Err("is empty: give a short label such as \"cooler-a\" (it names the results folder under output/)".into())
+    } else if name.chars().count() > NAME_MAX {
+        Err(format!("is longer than {NAME_MAX} characters: give a short label (it names the results folder under output/)"))
+    } else if name.starts_with('.') || !name.chars().all(ok_char) {
+        Err("is not a valid name: use letters, digits, '-', '_' and '.' (not first), e.g. \"cooler-a\"; it names the results folder under output/, and --out chooses any other folder".into())
+    } else {
+        Ok(())
+    }
+}
+
+/// The default name from a case file's name: characters outside the name set become '_'.
+fn name_from_file(stem: &str) -> String {
+    let mut s: String = stem.chars().take(NAME_MAX).map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' || c == '.' { c } else { '_' }).collect();
+    while s.starts_with('.') {
+        s.remove(0);
+    }
+    if s.is_empty() {
+        "case".into()
+    } else {
+        s
+    }
 }
 
 fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64, positive_only: bool) -> Signal {

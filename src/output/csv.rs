@@ -1,10 +1,12 @@
-//! Profiles as CSV: one row per cell centre, units in the column names.
+//! CSV files, streamed row by row: units in the column names, every number checked finite
+//! as it is formatted (a non-finite value stops the file and names its row and column).
 
 use crate::results::SteadyReport;
 use crate::scenario::TransientReport;
-use std::fmt::Write;
+use std::fmt::Write as _;
+use std::io::{self, Write};
 
-/// Column names, in order.
+/// Column names of profiles.csv, in order.
 pub const COLUMNS: [&str; 23] = [
     "x_m",
     "hot_C",
@@ -31,26 +33,96 @@ pub const COLUMNS: [&str; 23] = [
     "p_cold_Pa",
 ];
 
-/// The CSV text (empty fields where a value does not exist, e.g. Re without flow geometry).
-pub fn profiles(report: &SteadyReport) -> String {
-    let mut s = COLUMNS.join(",");
-    s.push('\n');
-    let opt = |v: Option<f64>| v.map(|x| format!("{x:.10e}")).unwrap_or_default();
-    for r in &report.profile {
-        let _ = writeln!(
-            s,
-            "{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{},{},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{:.10e},{},{}",
-            r.x_m,
-            r.hot_c,
-            r.cold_c,
-            r.wall_c,
-            r.heat_rate_per_length_w_m,
-            r.heat_flux_w_m2,
-            r.u_w_m2k,
-            r.h_hot_w_m2k,
-            r.h_cold_w_m2k,
-            opt(r.re_hot),
-            opt(r.re_cold),
+/// Column names of timeseries.csv, in order.
+pub const TIMESERIES_COLUMNS: [&str; 15] = [
+    "time_s",
+    "hot_inlet_C",
+    "cold_inlet_C",
+    "hot_flow_kg_s",
+    "cold_flow_kg_s",
+    "hot_outlet_C",
+    "cold_outlet_C",
+    "hot_duty_W",
+    "cold_duty_W",
+    "fluid_energy_J",
+    "wall_energy_J",
+    "max_wall_C",
+    "max_wall_rate_K_s",
+    "net_inflow_J",
+    "hot_heat_J",
+];
+
+/// Column names of snapshots.csv.
+pub const SNAPSHOT_COLUMNS: [&str; 5] = ["time_s", "x_m", "hot_C", "cold_C", "wall_C"];
+
+/// One row being built; the first non-finite number is remembered by column.
+struct Row<'c> {
+    line: String,
+    columns: &'c [&'c str],
+    index: usize,
+    bad: Option<&'c str>,
+}
+
+impl<'c> Row<'c> {
+    fn new(columns: &'c [&'c str]) -> Self {
+        Row { line: String::with_capacity(512), columns, index: 0, bad: None }
+    }
+    fn start(&mut self) {
+        self.line.clear();
+        self.index = 0;
+    }
+    fn sep(&mut self) {
+        if self.index > 0 {
+            self.line.push(',');
+        }
+        self.index += 1;
+    }
+    fn num(&mut self, v: f64, digits: usize) {
+        let col = self.columns[self.index.min(self.columns.len() - 1)];
+        self.sep();
+        if !v.is_finite() && self.bad.is_none() {
+            self.bad = Some(col);
+        }
+        let _ = write!(self.line, "{v:.digits$e}");
+    }
+    /// An optional value: an empty field where it does not exist.
+    fn opt(&mut self, v: Option<f64>) {
+        match v {
+            Some(x) => self.num(x, 10),
+            None => self.sep(),
+        }
+    }
+    fn finish(&mut self, w: &mut dyn Write, row: usize) -> io::Result<Result<(), String>> {
+        if let Some(col) = self.bad {
+            return Ok(Err(format!("row {row}, column {col}")));
+        }
+        self.line.push('\n');
+        w.write_all(self.line.as_bytes())?;
+        Ok(Ok(()))
+    }
+}
+
+fn header(w: &mut dyn Write, columns: &[&str]) -> io::Result<()> {
+    writeln!(w, "{}", columns.join(","))
+}
+
+/// profiles.csv: one row per cell centre (every `stride`-th cell, and the last), empty fields
+/// where a value does not exist (Re without flow geometry, pressure without a friction model).
+pub fn profiles(report: &SteadyReport, stride: usize, w: &mut dyn Write) -> io::Result<Result<(), String>> {
+    header(w, &COLUMNS)?;
+    let n = report.profile.len();
+    let mut row = Row::new(&COLUMNS);
+    for (i, r) in report.profile.iter().enumerate() {
+        if i % stride != 0 && i + 1 != n {
+            continue;
+        }
+        row.start();
+        for v in [r.x_m, r.hot_c, r.cold_c, r.wall_c, r.heat_rate_per_length_w_m, r.heat_flux_w_m2, r.u_w_m2k, r.h_hot_w_m2k, r.h_cold_w_m2k] {
+            row.num(v, 10);
+        }
+        row.opt(r.re_hot);
+        row.opt(r.re_cold);
+        for v in [
             r.pr_hot,
             r.pr_cold,
             r.mu_hot_pa_s,
@@ -61,20 +133,25 @@ pub fn profiles(report: &SteadyReport) -> String {
             r.rho_cold_kg_m3,
             r.k_hot_w_mk,
             r.k_cold_w_mk,
-            opt(r.p_hot_pa),
-            opt(r.p_cold_pa)
-        );
+        ] {
+            row.num(v, 10);
+        }
+        row.opt(r.p_hot_pa);
+        row.opt(r.p_cold_pa);
+        if let Err(bad) = row.finish(w, i + 1)? {
+            return Ok(Err(bad));
+        }
     }
-    s
+    Ok(Ok(()))
 }
 
-/// Time series: one row per output time.
-pub fn timeseries(report: &TransientReport) -> String {
-    let mut s = String::from(
-        "time_s,hot_inlet_C,cold_inlet_C,hot_flow_kg_s,cold_flow_kg_s,hot_outlet_C,cold_outlet_C,hot_duty_W,cold_duty_W,fluid_energy_J,wall_energy_J,max_wall_C,max_wall_rate_K_s,net_inflow_J,hot_heat_J\n",
-    );
-    for r in &report.samples {
-        let v = [
+/// timeseries.csv: one row per output time.
+pub fn timeseries(report: &TransientReport, w: &mut dyn Write) -> io::Result<Result<(), String>> {
+    header(w, &TIMESERIES_COLUMNS)?;
+    let mut row = Row::new(&TIMESERIES_COLUMNS);
+    for (i, r) in report.samples.iter().enumerate() {
+        row.start();
+        for v in [
             r.time_s,
             r.hot_inlet_C,
             r.cold_inlet_C,
@@ -90,16 +167,22 @@ pub fn timeseries(report: &TransientReport) -> String {
             r.max_wall_rate_K_s,
             r.net_inflow_J,
             r.hot_heat_J,
-        ];
-        let _ = writeln!(s, "{}", v.iter().map(|x| format!("{x:.10e}")).collect::<Vec<_>>().join(","));
+        ] {
+            row.num(v, 10);
+        }
+        if let Err(bad) = row.finish(w, i + 1)? {
+            return Ok(Err(bad));
+        }
     }
-    s
+    Ok(Ok(()))
 }
 
-/// Profile snapshots: one row per (time, face). Wall temperatures live at cell centres;
-/// at a face the mean of the two neighbouring cells is written (the end cell at the ends).
-pub fn snapshots(report: &TransientReport) -> String {
-    let mut s = String::from("time_s,x_m,hot_C,cold_C,wall_C\n");
+/// snapshots.csv: one row per (time, face). Wall temperatures live at cell centres; at a
+/// face the mean of the two neighbouring cells is written (the end cell at the ends).
+pub fn snapshots(report: &TransientReport, w: &mut dyn Write) -> io::Result<Result<(), String>> {
+    header(w, &SNAPSHOT_COLUMNS)?;
+    let mut row = Row::new(&SNAPSHOT_COLUMNS);
+    let mut k = 0;
     for snap in &report.snapshots {
         let n = snap.wall_c.len();
         for (j, x) in report.faces_m.iter().enumerate() {
@@ -108,8 +191,17 @@ pub fn snapshots(report: &TransientReport) -> String {
                 j if j == n => snap.wall_c[n - 1],
                 j => 0.5 * (snap.wall_c[j - 1] + snap.wall_c[j]),
             };
-            let _ = writeln!(s, "{:.6e},{:.6e},{:.10e},{:.10e},{:.10e}", snap.time_s, x, snap.hot_faces_c[j], snap.cold_faces_c[j], wall);
+            row.start();
+            row.num(snap.time_s, 6);
+            row.num(*x, 6);
+            for v in [snap.hot_faces_c[j], snap.cold_faces_c[j], wall] {
+                row.num(v, 10);
+            }
+            k += 1;
+            if let Err(bad) = row.finish(w, k)? {
+                return Ok(Err(bad));
+            }
         }
     }
-    s
+    Ok(Ok(()))
 }

@@ -1,14 +1,23 @@
 //! Writers: results in, files out. Solvers never call these; these never solve.
 //!
-//! A run's files are written into a fresh temporary folder beside the destination and
-//! moved into place only when every file is complete, so a failed run leaves the previous
-//! results untouched. Every number is checked finite before anything is written.
+//! Safety (see [`folder`]): results go to a staging folder and are swapped into place only
+//! when every file is complete; only folders hxgrid wrote (marked by [`folder::MARKER`]) are
+//! ever replaced. Every number is checked finite as it is written (the summaries by walking
+//! their serde form, the CSV files cell by cell), so no file holds `NaN`, `inf` or a `null`
+//! standing in for one.
+//!
+//! Size: above [`PROFILE_ROWS`] cells the profile CSV holds every k-th cell (first and last
+//! always) unless `all_cells` is set; plots draw at most [`svg::PLOT_POINTS`] points a curve.
 
 mod csv;
+mod finite;
+pub mod folder;
 mod svg;
 
 use crate::results::SteadyReport;
 use crate::scenario::TransientReport;
+pub use folder::check_destination;
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// Why results could not be written.
@@ -36,53 +45,77 @@ pub enum OutputError {
         /// Which value.
         what: String,
     },
+    /// The destination exists and is not a results folder hxgrid may replace.
+    #[error(
+        "will not write results to {path}: {reason}. hxgrid replaces only folders it wrote itself, so nothing was written and nothing there was touched; choose another folder with --out (a new or empty one), or move that one away"
+    )]
+    NotOurs {
+        /// The destination.
+        path: String,
+        /// What is there.
+        reason: String,
+    },
+    /// The destination has no final folder name (`.`, `..`, a root).
+    #[error("cannot write results to {path}: give --out a folder name, e.g. --out results/my-run")]
+    NotAFolderName {
+        /// The destination given.
+        path: String,
+    },
 }
 
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> OutputError + '_ {
     move |source| OutputError::Io { path: path.display().to_string(), source }
 }
 
+/// Above this many cells the profile CSV is thinned to about this many rows by default.
+pub const PROFILE_ROWS: usize = 20_000;
+
+/// How much to write.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct WriteOptions {
+    /// Write every cell to profiles.csv, however many there are.
+    pub all_cells: bool,
+}
+
+/// Every `stride`-th cell is written to profiles.csv (1 = every cell).
+pub fn profile_stride(cells: usize, options: WriteOptions) -> usize {
+    if options.all_cells || cells <= PROFILE_ROWS {
+        1
+    } else {
+        cells.div_ceil(PROFILE_ROWS)
+    }
+}
+
 /// Files a steady run writes, relative to its folder.
 pub const STEADY_FILES: [&str; 5] = ["summary.json", "profiles.csv", "temperatures.svg", "heat_flux.svg", "pressure.svg"];
 
-/// Check every number in the report is finite.
+/// Check every number in the report (summary and profiles) is finite.
 pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
-    check_json(&serde_json::to_value(report).expect("report serialises"), "summary")?;
-    let scalars = [
-        ("duty_W", report.duty_W),
-        ("hot_outlet_C", report.hot_outlet_C),
-        ("cold_outlet_C", report.cold_outlet_C),
-        ("effectiveness", report.effectiveness),
-        ("ntu", report.ntu),
-        ("capacity_ratio", report.capacity_ratio),
-        ("UA_W_K", report.UA_W_K),
-        ("energy_imbalance_W", report.energy_imbalance_W),
-        ("lumped.duty_W", report.lumped.duty_w),
-        ("lumped.hot_outlet_C", report.lumped.hot_outlet_c),
-        ("lumped.cold_outlet_C", report.lumped.cold_outlet_c),
-        ("lumped.effectiveness", report.lumped.effectiveness),
-    ];
-    for (what, v) in scalars {
-        if !v.is_finite() {
-            return Err(OutputError::NonFinite { what: what.into() });
-        }
+    if let Some(what) = finite::first_non_finite(report, "summary") {
+        return Err(OutputError::NonFinite { what });
     }
-    for (i, row) in report.profile.iter().enumerate() {
-        check_json(&serde_json::to_value(row).expect("row serialises"), &format!("profile[{i}]"))?;
-        for v in [row.hot_c, row.cold_c, row.wall_c, row.heat_flux_w_m2, row.u_w_m2k] {
-            if !v.is_finite() {
-                return Err(OutputError::NonFinite { what: format!("profile row {i}") });
-            }
-        }
+    if let Some(what) = finite::first_non_finite(&report.profile, "profile") {
+        return Err(OutputError::NonFinite { what });
     }
     Ok(())
 }
 
-/// Write a steady report into `dir` (created if needed; an existing folder is replaced
-/// only after the new files are complete). Returns the paths written.
-pub fn write_steady(report: &SteadyReport, dir: &Path) -> Result<Vec<PathBuf>, OutputError> {
-    check_finite(report)?;
-    write_folder(dir, |staging| write_all(report, staging))?;
+/// Write a steady report into `dir` (see the module header). Returns the paths written.
+pub fn write_steady(report: &SteadyReport, dir: &Path, options: WriteOptions) -> Result<Vec<PathBuf>, OutputError> {
+    if let Some(what) = finite::first_non_finite(report, "summary") {
+        return Err(OutputError::NonFinite { what });
+    }
+    let stride = profile_stride(report.profile.len(), options);
+    folder::write_folder(dir, &STEADY_FILES, |staging| {
+        let mut summary = serde_json::to_value(report).expect("report serialises");
+        summary["profile_csv_stride"] = stride.into();
+        write_text(&staging.join("summary.json"), &(serde_json::to_string_pretty(&summary).expect("value serialises") + "\n"))?;
+        write_with(&staging.join("profiles.csv"), |w| csv::profiles(report, stride, w))?;
+        svg::temperatures(report, &staging.join("temperatures.svg"))?;
+        svg::heat_flux(report, &staging.join("heat_flux.svg"))?;
+        svg::pressure(report, &staging.join("pressure.svg"))?;
+        Ok(())
+    })?;
     Ok(STEADY_FILES.iter().map(|f| dir.join(f)).collect())
 }
 
@@ -91,18 +124,13 @@ pub const TRANSIENT_FILES: [&str; 5] = ["transient.json", "timeseries.csv", "sna
 
 /// Write a transient report into `dir`, with the same all-or-nothing replacement.
 pub fn write_transient(report: &TransientReport, dir: &Path) -> Result<Vec<PathBuf>, OutputError> {
-    let json = serde_json::to_value(report).expect("report serialises");
-    check_json(&json, "transient")?;
-    for (i, s) in report.samples.iter().enumerate() {
-        check_json(&serde_json::to_value(s).expect("sample serialises"), &format!("timeseries[{i}]"))?;
+    if let Some(what) = finite::first_non_finite(report, "transient") {
+        return Err(OutputError::NonFinite { what });
     }
-    write_folder(dir, |staging| {
-        let path = staging.join("transient.json");
-        std::fs::write(&path, serde_json::to_string_pretty(report).expect("report serialises") + "\n").map_err(io(&path))?;
-        let path = staging.join("timeseries.csv");
-        std::fs::write(&path, csv::timeseries(report)).map_err(io(&path))?;
-        let path = staging.join("snapshots.csv");
-        std::fs::write(&path, csv::snapshots(report)).map_err(io(&path))?;
+    folder::write_folder(dir, &TRANSIENT_FILES, |staging| {
+        write_text(&staging.join("transient.json"), &(serde_json::to_string_pretty(report).expect("report serialises") + "\n"))?;
+        write_with(&staging.join("timeseries.csv"), |w| csv::timeseries(report, w))?;
+        write_with(&staging.join("snapshots.csv"), |w| csv::snapshots(report, w))?;
         svg::response(report, &staging.join("response.svg"))?;
         svg::snapshots(report, &staging.join("snapshots.svg"))?;
         Ok(())
@@ -110,56 +138,18 @@ pub fn write_transient(report: &TransientReport, dir: &Path) -> Result<Vec<PathB
     Ok(TRANSIENT_FILES.iter().map(|f| dir.join(f)).collect())
 }
 
-/// Reject any non-finite number in a serialised value (serde_json writes them as null).
-fn check_json(v: &serde_json::Value, path: &str) -> Result<(), OutputError> {
-    match v {
-        serde_json::Value::Object(m) => m.iter().try_for_each(|(k, v)| check_json(v, &format!("{path}.{k}"))),
-        serde_json::Value::Array(a) => a.iter().enumerate().try_for_each(|(i, v)| check_json(v, &format!("{path}[{i}]"))),
-        serde_json::Value::Number(n) if !n.as_f64().is_some_and(f64::is_finite) => Err(OutputError::NonFinite { what: path.to_string() }),
-        _ => Ok(()),
-    }
+fn write_text(path: &Path, text: &str) -> Result<(), OutputError> {
+    std::fs::write(path, text).map_err(io(path))
 }
 
-/// Write into a staging folder beside `dir`, then swap it into place; on any failure the
-/// staging folder is removed and `dir` is left as it was.
-fn write_folder(dir: &Path, fill: impl FnOnce(&Path) -> Result<(), OutputError>) -> Result<(), OutputError> {
-    let parent = dir.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    std::fs::create_dir_all(parent).map_err(io(parent))?;
-    let leaf = dir.file_name().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "results".into());
-    let staging = parent.join(format!(".{leaf}.partial-{}", std::process::id()));
-    if staging.exists() {
-        std::fs::remove_dir_all(&staging).map_err(io(&staging))?;
+/// Stream a file through a buffer; `fill` returns Ok(Err(what)) for a non-finite value.
+fn write_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<Result<(), String>>) -> Result<(), OutputError> {
+    let file = std::fs::File::create(path).map_err(io(path))?;
+    let mut w = std::io::BufWriter::with_capacity(1 << 16, file);
+    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+    match fill(&mut w).map_err(io(path))? {
+        Ok(()) => {}
+        Err(what) => return Err(OutputError::NonFinite { what: format!("{name}: {what}") }),
     }
-    std::fs::create_dir_all(&staging).map_err(io(&staging))?;
-    if let Err(e) = fill(&staging) {
-        let _ = std::fs::remove_dir_all(&staging);
-        return Err(e);
-    }
-    // Swap: old folder aside, new into place, old removed.
-    let old = parent.join(format!(".{leaf}.previous-{}", std::process::id()));
-    if dir.exists() {
-        std::fs::rename(dir, &old).map_err(io(dir))?;
-    }
-    if let Err(e) = std::fs::rename(&staging, dir) {
-        if old.exists() {
-            let _ = std::fs::rename(&old, dir);
-        }
-        return Err(io(dir)(e));
-    }
-    if old.exists() {
-        std::fs::remove_dir_all(&old).map_err(io(&old))?;
-    }
-    Ok(())
-}
-
-fn write_all(report: &SteadyReport, dir: &Path) -> Result<(), OutputError> {
-    let summary = dir.join("summary.json");
-    let text = serde_json::to_string_pretty(report).expect("report serialises");
-    std::fs::write(&summary, text + "\n").map_err(io(&summary))?;
-    let profiles = dir.join("profiles.csv");
-    std::fs::write(&profiles, csv::profiles(report)).map_err(io(&profiles))?;
-    svg::temperatures(report, &dir.join("temperatures.svg"))?;
-    svg::heat_flux(report, &dir.join("heat_flux.svg"))?;
-    svg::pressure(report, &dir.join("pressure.svg"))?;
-    Ok(())
+    w.into_inner().map_err(|e| io(path)(e.into_error()))?.sync_all().map_err(io(path))
 }

@@ -12,6 +12,20 @@ const COLD: RGBColor = RGBColor(30, 90, 200);
 const WALL: RGBColor = RGBColor(90, 90, 90);
 const SIZE: (u32, u32) = (900, 560);
 
+/// At most this many points are drawn on one curve: beyond a few thousand a curve looks the
+/// same and the file only grows (a 10⁶-cell profile would make a 100 MB SVG).
+pub const PLOT_POINTS: usize = 4000;
+
+/// Every k-th point (first and last kept) so that at most [`PLOT_POINTS`] remain.
+fn thin(pts: Vec<(f64, f64)>) -> Vec<(f64, f64)> {
+    let n = pts.len();
+    if n <= PLOT_POINTS {
+        return pts;
+    }
+    let stride = n.div_ceil(PLOT_POINTS - 1);
+    pts.into_iter().enumerate().filter(|(i, _)| i % stride == 0 || i + 1 == n).map(|(_, p)| p).collect()
+}
+
 /// Points of one curve, (x, y).
 type Points = Vec<(f64, f64)>;
 /// A labelled, coloured curve.
@@ -51,7 +65,7 @@ fn line<'a, 'b: 'a>(
     e: &dyn Fn(String) -> OutputError,
 ) -> Result<(), OutputError> {
     chart
-        .draw_series(LineSeries::new(pts, style))
+        .draw_series(LineSeries::new(thin(pts), style))
         .map_err(|x| e(x.to_string()))?
         .label(label)
         .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], style));
@@ -199,9 +213,9 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
     for (label, color, dashed, pts) in lines {
         let style = color.stroke_width(if dashed { 1 } else { 2 });
         let anno = if dashed {
-            chart.draw_series(DashedLineSeries::new(pts, 6, 4, style)).map_err(|x| e(x.to_string()))?
+            chart.draw_series(DashedLineSeries::new(thin(pts), 6, 4, style)).map_err(|x| e(x.to_string()))?
         } else {
-            chart.draw_series(LineSeries::new(pts, style)).map_err(|x| e(x.to_string()))?
+            chart.draw_series(LineSeries::new(thin(pts), style)).map_err(|x| e(x.to_string()))?
         };
         anno.label(label).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], style));
     }
