@@ -74,7 +74,7 @@ fn foreign_entries(dir: &Path) -> Result<Option<Vec<String>>, OutputError> {
         let ours = match &listed {
             Some(files) => {
                 let is_file = entry.file_type().map(|t| t.is_file()).unwrap_or(false);
-                name == MARKER || (is_file && files.iter().any(|f| *f == name))
+                name == MARKER || (is_file && files.contains(&name))
             }
             None => false,
         };
