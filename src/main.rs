@@ -63,7 +63,7 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
     let choice = match (&fluid, &table) {
         (Some(_), Some(_)) => return bad("give either a fluid name or --table FILE, not both".into()),
         (None, None) => return bad("give a fluid name (see `hxgrid fluids`) or --table FILE".into()),
-        (None, Some(path)) => match library::load_table(path) {
+        (None, Some(path)) => match hxgrid::case::read::table(path) {
             Ok(t) => FluidChoice::Table(t),
             Err(e) => return bad(format!("invalid fluid table: {e}")),
         },

@@ -101,8 +101,13 @@ proptest! {
         let report = match hxgrid::study::rate("random", &ex, &case.solver, &Default::default(), &mut hxgrid::solve::SilentObserver) {
             Ok(r) => r,
             // A grid too coarse for the scheme is refused with a clear error, not returned.
+            // The advice must work: the suggested grid solves.
             Err(hxgrid::solve::SolveError::GridTooCoarse { suggested_cells, .. }) => {
-                prop_assert!(suggested_cells > r.cells as usize);
+                let n = suggested_cells.expect("a coarse-grid refusal names a cell count");
+                prop_assert!(n > r.cells as usize);
+                let solver = hxgrid::solve::SteadySettings { cells: n, ..case.solver.clone() };
+                let again = hxgrid::solve::solve_steady(&ex, &solver, &mut hxgrid::solve::SilentObserver);
+                prop_assert!(!matches!(again, Err(hxgrid::solve::SolveError::GridTooCoarse { .. })), "{n} cells still too coarse");
                 return Ok(());
             }
             Err(e) => return Err(TestCaseError::fail(format!("{e}\n{text}"))),

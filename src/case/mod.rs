@@ -2,6 +2,7 @@
 //! reports every problem at once, and building the [`Exchanger`](crate::model::Exchanger).
 
 mod file;
+pub mod read;
 mod schema;
 mod validate;
 

@@ -162,9 +162,9 @@ fn line_of(text: &str, offset: usize) -> usize {
 
 fn describe(v: &Value) -> String {
     match v {
-        Value::String(s) => format!("the text \"{}\"", s.value()),
+        Value::String(s) => format!("the text {}", crate::text::quote(s.value(), 40)),
         Value::Integer(i) => format!("the whole number {}", i.value()),
-        Value::Float(x) => format!("the number {}", x.value()),
+        Value::Float(x) => format!("the number {}", crate::text::num(*x.value())),
         Value::Boolean(b) => format!("{}", b.value()),
         Value::Datetime(_) => "a date".into(),
         Value::Array(_) => "a list".into(),

@@ -7,6 +7,7 @@ use crate::fluid::{Props, WaterPhase};
 use crate::model::{Arrangement, Exchanger, Stream};
 use crate::solve::transient::{Initial, Inputs, Integrator, Signal, TransientSettings};
 use crate::solve::SteadySettings;
+use crate::text::num;
 use crate::transfer::{
     Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall, WallCorrection, Zukauskas,
     NU_TUBE_LAMINAR_T,
@@ -38,13 +39,13 @@ impl std::fmt::Display for Problem {
 /// Why a case could not be read.
 #[derive(Debug, thiserror::Error)]
 pub enum CaseError {
-    /// The file could not be read.
-    #[error("cannot read case file {path}: {source}")]
-    Io {
+    /// The file could not be read (missing, not a regular file, too large, not text).
+    #[error("case file {path} {problem}")]
+    Unreadable {
         /// Path given.
         path: String,
-        /// OS error.
-        source: std::io::Error,
+        /// What is wrong with it.
+        problem: String,
     },
     /// TOML syntax, a missing key, an unknown key or a wrong type.
     #[error("{origin}: {message}")]
@@ -241,7 +242,8 @@ impl TransientSpec {
 
 /// Read and validate a case file.
 pub fn load(path: &Path) -> Result<Case, CaseError> {
-    let text = std::fs::read_to_string(path).map_err(|source| CaseError::Io { path: path.display().to_string(), source })?;
+    let text = super::read::text_file(path, super::read::CASE_MAX_BYTES, None)
+        .map_err(|problem| CaseError::Unreadable { path: path.display().to_string(), problem })?;
     let stem = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "case".into());
     let base = path.parent().unwrap_or(Path::new("."));
     parse_in(&text, &path.display().to_string(), &stem, base)
@@ -275,6 +277,10 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
     match validate(&file, default_name, base_dir) {
         Ok(mut case) if problems.is_empty() => {
             let ex = case.build();
+            let derived = derived_problems(&case, &ex);
+            if !derived.is_empty() {
+                return Err(invalid(derived));
+            }
             case.warnings.extend(velocity_warnings(&ex));
             Ok(case)
         }
@@ -285,6 +291,42 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
             Err(invalid(problems))
         }
     }
+}
+
+/// The groups every solve divides by, at the inlet states: Prandtl number, capacity rate,
+/// Reynolds number and NTU. Each input can be within its own range and still give a group
+/// that overflows (a viscosity of 10⁸ Pa·s with a conductivity of 10⁻³⁰⁰ W/(m·K)); that is
+/// an input problem, named here, not a failure to write results later.
+fn derived_problems(case: &Case, ex: &Exchanger) -> Vec<Problem> {
+    let mut out = Vec::new();
+    let fail = |out: &mut Vec<Problem>, key: String, message: String| out.push(Problem { key, line: None, message });
+    let mut c_min = f64::INFINITY;
+    for (side, spec, s) in [("hot", &case.hot, &ex.hot), ("cold", &case.cold, &ex.cold)] {
+        let key = if matches!(spec.fluid, FluidChoice::Constant(_)) { format!("{side}.properties") } else { side.to_string() };
+        let p = s.fluid.props(s.inlet_c);
+        let groups = [
+            ("the Prandtl number μ·cp/k", p.prandtl()),
+            ("the capacity rate ṁ·cp (W/K)", s.mass_flow_kg_s * p.cp),
+            ("the Reynolds number", s.channel.reynolds(s.mass_flow_kg_s, p.viscosity).unwrap_or(1.0)),
+        ];
+        for (what, v) in groups {
+            if !(v.is_finite() && v > 0.0) {
+                fail(&mut out, key.clone(), format!("the values give {what} = {} at the inlet: check the property values and their units", num(v)));
+            }
+        }
+        c_min = c_min.min(s.mass_flow_kg_s * p.cp);
+    }
+    if out.is_empty() {
+        let ntu = ex.ua_per_length_at(ex.hot.inlet_c, ex.cold.inlet_c) * ex.length_m / c_min;
+        if !(ntu.is_finite() && ntu >= 0.0) {
+            fail(
+                &mut out,
+                "length_m".into(),
+                format!("the inputs give NTU = {} at the inlet temperatures: check film coefficients, properties and geometry", num(ntu)),
+            );
+        }
+    }
+    out
 }
 
 /// Warnings for inlet velocities far outside normal practice (common design ranges:
@@ -298,7 +340,8 @@ pub fn velocity_warnings(ex: &crate::model::Exchanger) -> Vec<String> {
         let (lo, hi, kind) = if rho > 200.0 { (0.05, 5.0, "a liquid") } else { (0.5, 60.0, "a gas") };
         if u < lo || u > hi {
             out.push(format!(
-                "{name} stream: inlet velocity {u:.3} m/s is far outside normal practice for {kind} ({lo}–{hi} m/s): check {name}.mass_flow_kg_s and the flow geometry (diameters in metres?)"
+                "{name} stream: inlet velocity {} m/s is far outside normal practice for {kind} ({lo}–{hi} m/s): check {name}.mass_flow_kg_s and the flow geometry (diameters in metres?)",
+                num(u)
             ));
         }
     }
@@ -320,9 +363,9 @@ impl Checker {
     /// A finite value strictly above zero.
     fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
         if !(v.is_finite() && v > 0.0) {
-            self.fail(key, format!("{v} {unit} is not valid: it must be a finite number above zero"));
+            self.fail(key, format!("{v} {unit} is not valid: it must be a finite number above zero", v = num(v)));
         } else if v > 1e9 {
-            self.fail(key, format!("{v} {unit} is implausibly large for any exchanger: check the units in the key name"));
+            self.fail(key, format!("{v} {unit} is implausibly large for any exchanger: check the units in the key name", v = num(v)));
         }
         v
     }
@@ -337,7 +380,7 @@ impl Checker {
     }
     fn looks_like_mm(&mut self, key: &str, v: f64) {
         if v.is_finite() && v > 2.0 {
-            self.warnings.push(format!("{key} = {v} m is very large: was it entered in millimetres? (keys ending _m are metres)"));
+            self.warnings.push(format!("{key} = {v} m is very large: was it entered in millimetres? (keys ending _m are metres)", v = num(v)));
         }
     }
 }
@@ -352,7 +395,11 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
                 if (l - depth).abs() > 1e-9 * depth.abs().max(1.0) {
                     c.fail(
                         "length_m",
-                        format!("{l} m differs from the tube bank's depth rows × longitudinal_pitch_m = {depth} m: omit length_m for a tube bank"),
+                        format!(
+                            "{l} m differs from the tube bank's depth rows × longitudinal_pitch_m = {depth} m: omit length_m for a tube bank",
+                            l = num(l),
+                            depth = num(depth)
+                        ),
                     );
                 }
             }
@@ -378,12 +425,15 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     }
     let defaults = SteadySettings::default();
     let cells = f.solver.cells.unwrap_or(defaults.cells as i64);
-    if !(1..=10_000_000).contains(&cells) {
+    if !(1..=crate::solve::MAX_CELLS as i64).contains(&cells) {
         c.fail("solver.cells", format!("{cells} is not valid: use a whole number from 1 to 10 000 000"));
     }
     let tolerance = f.solver.residual_tolerance.unwrap_or(defaults.tolerance);
     if !(tolerance > 0.0 && tolerance < 1.0) {
-        c.fail("solver.residual_tolerance", format!("{tolerance} is not valid: use a value between 0 and 1 (exclusive), e.g. 1e-10"));
+        c.fail(
+            "solver.residual_tolerance",
+            format!("{tolerance} is not valid: use a value between 0 and 1 (exclusive), e.g. 1e-10", tolerance = num(tolerance)),
+        );
     }
     let max_iterations = f.solver.max_iterations.unwrap_or(defaults.max_iterations as i64);
     if !(1..=10_000).contains(&max_iterations) {
@@ -457,7 +507,7 @@ fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64
         match v {
             Some(x) if x.is_finite() => x,
             Some(x) => {
-                c.fail(&format!("{key}.{name}"), format!("{x} is not a finite number"));
+                c.fail(&format!("{key}.{name}"), format!("{x} is not a finite number", x = num(x)));
                 0.0
             }
             None => {
@@ -468,12 +518,12 @@ fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64
     };
     let check_value = |c: &mut Checker, name: &str, v: f64| {
         if positive_only && v < 0.0 {
-            c.fail(&format!("{key}.{name}"), format!("{v} is not valid: a mass flow cannot be negative (0 stops the flow)"));
+            c.fail(&format!("{key}.{name}"), format!("{v} is not valid: a mass flow cannot be negative (0 stops the flow)", v = num(v)));
         }
     };
     let check_time = |c: &mut Checker, name: &str, t: f64| {
         if !(0.0..=duration).contains(&t) {
-            c.warnings.push(format!("{key}.{name} = {t} s lies outside the simulated 0 … {duration} s"));
+            c.warnings.push(format!("{key}.{name} = {t} s lies outside the simulated 0 … {duration} s", t = num(t), duration = num(duration)));
         }
     };
     match s.kind {
@@ -486,7 +536,7 @@ fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64
         SignalKind::Ramp => {
             let (a, b, to) = (need(c, "start_s", s.start_s), need(c, "end_s", s.end_s), need(c, "to", s.to));
             if b <= a {
-                c.fail(&format!("{key}.end_s"), format!("{b} s must be after start_s = {a} s"));
+                c.fail(&format!("{key}.end_s"), format!("{b} s must be after start_s = {a} s", b = num(b), a = num(a)));
             }
             check_value(c, "to", to);
             Signal::Ramp { start_s: a, end_s: b.max(a + 1e-9), from: before, to }
@@ -511,18 +561,94 @@ fn signal(c: &mut Checker, key: &str, s: &SignalFile, before: f64, duration: f64
     }
 }
 
+/// Most rows in timeseries.csv (one per output time): about 40 MB of CSV.
+pub const TIMESERIES_MAX_ROWS: usize = 200_000;
+/// Most profile snapshots in one run.
+pub const SNAPSHOTS_MAX: usize = 1_000;
+/// Most snapshot rows (snapshots × faces) in snapshots.csv: about 150 MB of CSV, 60 MB held.
+pub const SNAPSHOT_MAX_ROWS: usize = 2_000_000;
+
+/// Snapshot times: within the run, not too many, and a warning for those taken at the
+/// nearest output time rather than at the time given.
+fn snapshot_checks(c: &mut Checker, times: &[f64], duration: f64, interval: f64, cells: usize) {
+    let key = "transient.snapshot_times_s";
+    let outside: Vec<String> = times.iter().filter(|t| !(t.is_finite() && **t >= 0.0 && **t <= duration * (1.0 + 1e-12))).map(|t| num(*t)).collect();
+    if !outside.is_empty() {
+        c.fail(key, format!("{} s outside the run: give times from 0 to duration_s = {} s", list(&outside), num(duration)));
+    }
+    if times.len() > SNAPSHOTS_MAX {
+        c.fail(key, format!("{} snapshots asked for, more than the {SNAPSHOTS_MAX} hxgrid keeps: give fewer times", times.len()));
+    } else if times.len() * (cells + 1) > SNAPSHOT_MAX_ROWS {
+        c.fail(
+            key,
+            format!(
+                "{} snapshots of {} faces would write {} rows, more than the {SNAPSHOT_MAX_ROWS} hxgrid writes: give at most {} snapshot times or fewer cells",
+                times.len(),
+                cells + 1,
+                times.len() * (cells + 1),
+                SNAPSHOT_MAX_ROWS / (cells + 1)
+            ),
+        );
+    }
+    if outside.is_empty() && interval.is_finite() && interval > 0.0 {
+        let moved: Vec<String> = times
+            .iter()
+            .filter_map(|&t| {
+                let at = ((t / interval).round() * interval).min(duration);
+                ((at - t).abs() > 1e-9 * duration.max(1.0)).then(|| format!("{} s → {} s", num(t), num(at)))
+            })
+            .collect();
+        if !moved.is_empty() {
+            c.warnings.push(format!(
+                "{key}: snapshots are taken at output times (every output_interval_s = {} s), so these move to the nearest one: {}",
+                num(interval),
+                list(&moved)
+            ));
+        }
+    }
+}
+
+/// At most ten items of a list, then a count of the rest.
+fn list(items: &[String]) -> String {
+    let shown = items.iter().take(10).cloned().collect::<Vec<_>>().join(", ");
+    if items.len() > 10 {
+        format!("{shown} and {} more", items.len() - 10)
+    } else {
+        shown
+    }
+}
+
 fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geometry, cells: usize) -> TransientSpec {
     let duration = c.positive("transient.duration_s", t.duration_s, "s");
     let interval = t.output_interval_s.unwrap_or((duration / 1000.0).max(1e-6));
     if !(interval > 0.0 && interval <= duration) {
-        c.fail("transient.output_interval_s", format!("{interval} s is not valid: use a positive interval no longer than duration_s = {duration} s"));
+        c.fail(
+            "transient.output_interval_s",
+            format!(
+                "{interval} s is not valid: use a positive interval no longer than duration_s = {duration} s",
+                interval = num(interval),
+                duration = num(duration)
+            ),
+        );
     }
-    if duration / interval > 1e6 {
-        c.fail("transient.output_interval_s", format!("{interval} s gives more than a million output rows over {duration} s: use a longer interval"));
+    if duration / interval > TIMESERIES_MAX_ROWS as f64 {
+        c.fail(
+            "transient.output_interval_s",
+            format!(
+                "{} s gives {} output rows over duration_s = {} s, more than the {TIMESERIES_MAX_ROWS} hxgrid writes: use an interval of at least {} s",
+                num(interval),
+                num((duration / interval).floor() + 1.0),
+                num(duration),
+                num(duration / TIMESERIES_MAX_ROWS as f64)
+            ),
+        );
     }
     let tolerance = t.tolerance_K.unwrap_or(1e-4);
     if !(tolerance > 0.0 && tolerance < 10.0) {
-        c.fail("transient.tolerance_K", format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-4"));
+        c.fail(
+            "transient.tolerance_K",
+            format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-4", tolerance = num(tolerance)),
+        );
     }
     let initial = match (t.initial, t.initial_temperature_C) {
         (None | Some(InitialName::Steady), None) => Initial::Steady,
@@ -555,6 +681,7 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
         }
     }
     let snapshots = t.snapshot_times_s.clone().unwrap_or_else(|| (0..=4).map(|k| k as f64 * duration / 4.0).collect());
+    snapshot_checks(c, &snapshots, duration, interval, cells);
     let mut sig =
         |name: &str, s: &Option<SignalFile>, before: f64, flow: bool| s.as_ref().map(|s| signal(c, &format!("transient.{name}"), s, before, duration, flow));
     let hot_inlet_c = sig("hot_inlet_temperature_C", &t.hot_inlet_temperature_C, f.hot.inlet_temperature_C, false);
@@ -577,7 +704,10 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
         wall_volumetric_heat_capacity: rho * cw,
         response_from_s: match t.response_from_s {
             Some(r) if !(r >= 0.0 && r < duration) => {
-                c.fail("transient.response_from_s", format!("{r} s is not valid: give a time from 0 up to (not including) duration_s = {duration} s"));
+                c.fail(
+                    "transient.response_from_s",
+                    format!("{r} s is not valid: give a time from 0 up to (not including) duration_s = {duration} s", r = num(r), duration = num(duration)),
+                );
                 None
             }
             v => v,
@@ -661,7 +791,7 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
         if di >= d_o {
             c.fail(
                 "geometry.tube_inner_diameter_m",
-                format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)"),
+                format!("{di} m must be smaller than geometry.tube_outer_diameter_m = {d_o} m (the wall needs a thickness)", di = num(di), d_o = num(d_o)),
             );
         }
         (di, d_o)
@@ -688,7 +818,7 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             if d_o >= ds {
                 c.fail(
                     "geometry.shell_inner_diameter_m",
-                    format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)"),
+                    format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)", ds = num(ds), d_o = num(d_o)),
                 );
             }
             let annulus_equivalent_diameter = g.annulus_heat_diameter == Some(AnnulusDiameter::Equivalent);
@@ -728,7 +858,7 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             let st = c.required("geometry.transverse_pitch_m", g.transverse_pitch_m, "m", why);
             let sl = c.required("geometry.longitudinal_pitch_m", g.longitudinal_pitch_m, "m", why);
             if st <= d_o {
-                c.fail("geometry.transverse_pitch_m", format!("{st} m must exceed the tube outer diameter {d_o} m (tubes cannot overlap)"));
+                c.fail("geometry.transverse_pitch_m", format!("{} m must exceed the tube outer diameter {} m (tubes cannot overlap)", num(st), num(d_o)));
             }
             let layout = match g.layout {
                 Some(LayoutName::Aligned) => Layout::Aligned,
@@ -739,7 +869,21 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                 }
             };
             if layout == Layout::Aligned && sl <= d_o {
-                c.fail("geometry.longitudinal_pitch_m", format!("{sl} m must exceed the tube outer diameter {d_o} m in an aligned bank"));
+                c.fail("geometry.longitudinal_pitch_m", format!("{} m must exceed the tube outer diameter {} m in an aligned bank", num(sl), num(d_o)));
+            }
+            // Staggered: neighbours in adjacent rows sit at the diagonal pitch
+            // S_D = √(S_L² + (S_T/2)²), which must exceed D for the tubes not to overlap.
+            let diagonal = (sl * sl + 0.25 * st * st).sqrt();
+            if layout == Layout::Staggered && diagonal <= d_o {
+                c.fail(
+                    "geometry.longitudinal_pitch_m",
+                    format!(
+                        "{} m puts tubes of adjacent rows {} m apart (diagonal pitch √(S_L² + (S_T/2)²)), less than the tube outer diameter {} m: the tubes would overlap",
+                        num(sl),
+                        num(diagonal),
+                        num(d_o)
+                    ),
+                );
             }
             let rows = count(c, "geometry.rows", g.rows, why);
             let tubes_per_row = count(c, "geometry.tubes_per_row", g.tubes_per_row, why);
@@ -748,6 +892,18 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                 None => tubes_per_row,
                 v => count(c, "geometry.tube_circuits", v, why),
             };
+            let tubes = rows * tubes_per_row;
+            if circuits > tubes {
+                c.fail(
+                    "geometry.tube_circuits",
+                    format!("{circuits} circuits but the bank has only {tubes} tubes (rows × tubes_per_row): give at most {tubes}"),
+                );
+            } else if tubes > 0 && circuits > 0 && tubes % circuits != 0 {
+                c.fail(
+                    "geometry.tube_circuits",
+                    format!("{circuits} circuits do not divide the {tubes} tubes (rows × tubes_per_row) evenly: every circuit must hold the same number of tubes in series"),
+                );
+            }
             let bank = TubeBank {
                 outer_diameter_m: d_o,
                 transverse_pitch_m: st,
@@ -763,7 +919,7 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
 
 /// Read a compact-surface data file: `reynolds,colburn_j,fanning_f` rows, Re increasing.
 fn compact_data(path: &Path) -> Result<Vec<(f64, f64, f64)>, String> {
-    let text = std::fs::read_to_string(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+    let text = super::read::text_file(path, super::read::DATA_MAX_BYTES, Some(super::read::DATA_MAX_LINES)).map_err(|e| format!("{} {e}", path.display()))?;
     let mut rows: Vec<(f64, f64, f64)> = Vec::new();
     let mut header = false;
     for (i, raw) in text.lines().enumerate() {
@@ -780,7 +936,7 @@ fn compact_data(path: &Path) -> Result<Vec<(f64, f64, f64)>, String> {
         }
         let v: Vec<f64> = line.split(',').filter_map(|x| x.trim().parse::<f64>().ok()).collect();
         if v.len() != 3 || v.iter().any(|x| !(x.is_finite() && *x > 0.0)) {
-            return Err(format!("{}, line {}: need three positive numbers (Re, j, f), got '{line}'", path.display(), i + 1));
+            return Err(format!("{}, line {}: need three positive numbers (Re, j, f), got {}", path.display(), i + 1, crate::text::quote(line, 40)));
         }
         if rows.last().is_some_and(|r| v[0] <= r.0) {
             return Err(format!("{}, line {}: Reynolds numbers must increase", path.display(), i + 1));
@@ -914,22 +1070,37 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
     let key = |k: &str| format!("{side}.{k}");
     let inlet_c = s.inlet_temperature_C;
     if !inlet_c.is_finite() || inlet_c <= -273.15 || inlet_c > 5000.0 {
-        c.fail(&key("inlet_temperature_C"), format!("{inlet_c} °C is not valid: give a temperature above −273.15 °C and below 5000 °C (°C, not K?)"));
+        c.fail(
+            &key("inlet_temperature_C"),
+            format!("{inlet_c} °C is not valid: give a temperature above −273.15 °C and below 5000 °C (°C, not K?)", inlet_c = num(inlet_c)),
+        );
     }
     let mass_flow_kg_s = c.positive(&key("mass_flow_kg_s"), s.mass_flow_kg_s, "kg/s");
     let fouling_m2k_w = s.fouling_m2K_W.unwrap_or(0.0);
     if !(fouling_m2k_w.is_finite() && (0.0..=1.0).contains(&fouling_m2k_w)) {
         c.fail(
             &key("fouling_m2K_W"),
-            format!("{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001 (at most 1)"),
+            format!(
+                "{fouling_m2k_w} m²K/W is not valid: use 0 (clean) or a positive resistance, typically 0.0001–0.001 (at most 1)",
+                fouling_m2k_w = num(fouling_m2k_w)
+            ),
         );
     } else if fouling_m2k_w > 0.01 {
-        c.warnings.push(format!("{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units"));
+        c.warnings.push(format!(
+            "{side}.fouling_m2K_W = {fouling_m2k_w} m²K/W is far above tabulated values (≤ 0.002): check the units",
+            fouling_m2k_w = num(fouling_m2k_w)
+        ));
     }
     let film = film_spec(c, side, s, base_dir, geometry);
     let roughness_m = s.roughness_m.unwrap_or(0.0);
     if !(roughness_m.is_finite() && roughness_m >= 0.0) {
-        c.fail(&key("roughness_m"), format!("{roughness_m} m is not valid: use 0 (smooth) or a positive absolute roughness, e.g. 4.5e-5 for commercial steel"));
+        c.fail(
+            &key("roughness_m"),
+            format!(
+                "{roughness_m} m is not valid: use 0 (smooth) or a positive absolute roughness, e.g. 4.5e-5 for commercial steel",
+                roughness_m = num(roughness_m)
+            ),
+        );
     }
     let fluid = fluid_choice(c, side, s, base_dir);
     // Pressure: given, else the table's own pressure, else one atmosphere.
@@ -944,7 +1115,7 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
                 if p.is_finite() && ((p - tp) / tp).abs() > 0.005 {
                     c.fail(
                         &key("pressure_bar_abs"),
-                        format!("{:.4} bar does not match fluid \"{}\", tabulated at {:.4} bar: set pressure_bar_abs = {} or omit it, or choose the table for your pressure", p * 1e-5, s.fluid, tp * 1e-5, (tp * 1e-5 * 1e6).round() / 1e6),
+                        format!("{:.4} bar does not match fluid \"{}\", tabulated at {:.4} bar: set pressure_bar_abs = {} or omit it, or choose the table for your pressure", p * 1e-5, s.fluid, tp * 1e-5, num(tp * 1e-5)),
                     );
                 }
             }
@@ -987,13 +1158,13 @@ pub fn closest<'a>(word: &str, options: &'a [String]) -> Option<&'a str> {
 fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) -> Option<FluidChoice> {
     let key = |k: &str| format!("{side}.{k}");
     if s.properties.is_some() && s.fluid != "constant" {
-        c.fail(&key("properties"), format!("is only used with fluid = \"constant\" (fluid is \"{}\"): remove the table", s.fluid));
+        c.fail(&key("properties"), format!("is only used with fluid = \"constant\" (fluid is {}): remove the table", crate::text::quote(&s.fluid, 40)));
     }
     if s.table_file.is_some() && s.fluid != "table" {
-        c.fail(&key("table_file"), format!("is only used with fluid = \"table\" (fluid is \"{}\"): remove it", s.fluid));
+        c.fail(&key("table_file"), format!("is only used with fluid = \"table\" (fluid is {}): remove it", crate::text::quote(&s.fluid, 40)));
     }
     if s.phase.is_some() && s.fluid != "water" {
-        c.fail(&key("phase"), format!("is only used with fluid = \"water\" (fluid is \"{}\"): remove it", s.fluid));
+        c.fail(&key("phase"), format!("is only used with fluid = \"water\" (fluid is {}): remove it", crate::text::quote(&s.fluid, 40)));
     }
     match s.fluid.as_str() {
         "water" => Some(FluidChoice::Water(match s.phase.as_deref() {
@@ -1013,10 +1184,10 @@ fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) ->
             }
         },
         "table" => match &s.table_file {
-            Some(file) => match library::load_table(&base_dir.join(file)) {
+            Some(file) => match super::read::table(&base_dir.join(file)) {
                 Ok(t) => Some(FluidChoice::Table(t)),
                 Err(e) => {
-                    c.fail(&key("table_file"), format!("\"{file}\" is not a valid fluid table: {e}"));
+                    c.fail(&key("table_file"), format!("{} is not a valid fluid table: {e}", crate::text::quote(file, 80)));
                     None
                 }
             },
@@ -1030,7 +1201,10 @@ fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) ->
             None => {
                 let names = library::names();
                 let hint = closest(name, &names).map(|n| format!(" Did you mean \"{n}\"?")).unwrap_or_default();
-                c.fail(&key("fluid"), format!("\"{name}\" is not a known fluid.{hint} Valid: {} (list them with `hxgrid fluids`)", names.join(", ")));
+                c.fail(
+                    &key("fluid"),
+                    format!("{} is not a known fluid.{hint} Valid: {} (list them with `hxgrid fluids`)", crate::text::quote(name, 40), names.join(", ")),
+                );
                 None
             }
         },
@@ -1049,15 +1223,14 @@ fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f6
                         format!(
                             "{:.4} bar is below the saturation pressure of water at the inlet temperature {inlet_c} °C ({p_sat_bar:.4} bar; at {:.4} bar water boils at {t_sat:.2} °C): raise pressure_bar_abs above {p_sat_bar:.3} bar for liquid water, or set phase = \"vapour\" for superheated steam",
                             pressure_pa * 1e-5,
-                            pressure_pa * 1e-5
-                        ),
+                            pressure_pa * 1e-5, inlet_c = num(inlet_c)),
                     );
                     return;
                 }
                 WaterPhase::Vapour if inlet_c <= t_sat + 0.1 => {
                     c.fail(
                         &format!("{side}.inlet_temperature_C"),
-                        format!("{inlet_c} °C is not superheated steam at {:.4} bar (saturation {t_sat:.2} °C): raise the temperature, lower the pressure, or use phase = \"liquid\"", pressure_pa * 1e-5),
+                        format!("{inlet_c} °C is not superheated steam at {:.4} bar (saturation {t_sat:.2} °C): raise the temperature, lower the pressure, or use phase = \"liquid\"", pressure_pa * 1e-5, inlet_c = num(inlet_c)),
                     );
                     return;
                 }
@@ -1076,12 +1249,19 @@ fn check_inlet(c: &mut Checker, side: &str, fluid: &FluidChoice, pressure_pa: f6
     if inlet_c < r.min_c {
         c.fail(
             &format!("{side}.inlet_temperature_C"),
-            format!("{inlet_c} °C is below the lowest valid temperature {:.2} °C of {} (valid {:.2} … {:.2} °C)", r.min_c, built.name(), r.min_c, r.max_c),
+            format!(
+                "{inlet_c} °C is below the lowest valid temperature {:.2} °C of {} (valid {:.2} … {:.2} °C)",
+                r.min_c,
+                built.name(),
+                r.min_c,
+                r.max_c,
+                inlet_c = num(inlet_c)
+            ),
         );
     } else if inlet_c > r.max_c {
         c.fail(
             &format!("{side}.inlet_temperature_C"),
-            format!("{inlet_c} °C is above the valid range {:.2} … {:.2} °C of {}: {}", r.min_c, r.max_c, built.name(), r.reason),
+            format!("{inlet_c} °C is above the valid range {:.2} … {:.2} °C of {}: {}", r.min_c, r.max_c, built.name(), r.reason, inlet_c = num(inlet_c)),
         );
     }
 }

@@ -2,7 +2,7 @@
 //! `tools/make_fluid_tables.py` (source, version and date in each file's header) and
 //! compiled into the program, so it needs no data files at run time.
 
-use super::{ConstantFluid, Fluid, Props, TableError, TableFluid, Water};
+use super::{ConstantFluid, Fluid, Props, TableFluid, Water};
 use std::sync::Arc;
 
 /// Built-in tabulated fluids: (name, table text).
@@ -64,11 +64,4 @@ impl FluidChoice {
             FluidChoice::Table(t) => Arc::new(t.clone().at_pressure(pressure_pa)),
         })
     }
-}
-
-/// Parse a user's table file.
-pub fn load_table(path: &std::path::Path) -> Result<TableFluid, TableError> {
-    let text =
-        std::fs::read_to_string(path).map_err(|e| TableError { file: path.display().to_string(), line: 0, problem: format!("cannot read the file: {e}") })?;
-    TableFluid::parse(&text, &path.display().to_string())
 }

@@ -157,6 +157,7 @@ impl TableFluid {
         let mut meta = std::collections::HashMap::new();
         let mut header_seen = false;
         let mut rows: Vec<[f64; 5]> = Vec::new();
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         for (idx, raw) in text.lines().enumerate() {
             let line_no = idx + 1;
             let line = raw.trim();
@@ -177,7 +178,7 @@ impl TableFluid {
                         .iter()
                         .zip(&want)
                         .position(|(a, b)| a != b)
-                        .map(|i| format!("column {} is '{}' but must be '{}'", i + 1, cols[i], want[i]))
+                        .map(|i| format!("column {} is {} but must be '{}'", i + 1, crate::text::quote(cols[i], 24), want[i]))
                         .unwrap_or_else(|| format!("{} columns given, {} required", cols.len(), want.len()));
                     return Err(err(line_no, format!("the header line (names with units) must be exactly '{HEADER}': {detail}")));
                 }
@@ -190,22 +191,24 @@ impl TableFluid {
             }
             let mut row = [0.0; 5];
             for (j, c) in cells.iter().enumerate() {
-                row[j] = c
-                    .parse::<f64>()
-                    .ok()
-                    .filter(|v| v.is_finite())
-                    .ok_or_else(|| err(line_no, format!("'{c}' in column {} ({}) is not a finite number", j + 1, HEADER.split(',').nth(j).unwrap())))?;
+                row[j] = c.parse::<f64>().ok().filter(|v| v.is_finite()).ok_or_else(|| {
+                    err(line_no, format!("{} in column {} ({}) is not a finite number", crate::text::quote(c, 24), j + 1, HEADER.split(',').nth(j).unwrap()))
+                })?;
             }
             for (j, name) in HEADER.split(',').enumerate().skip(1) {
                 if row[j] <= 0.0 {
-                    return Err(err(line_no, format!("{name} = {} must be positive", row[j])));
+                    return Err(err(line_no, format!("{name} = {} must be positive", crate::text::num(row[j]))));
                 }
             }
             if let Some(prev) = rows.last() {
                 if row[0] <= prev[0] {
                     return Err(err(
                         line_no,
-                        format!("temperature {} °C does not increase (previous row {} °C): rows must be in strictly increasing temperature", row[0], prev[0]),
+                        format!(
+                            "temperature {} °C does not increase (previous row {} °C): rows must be in strictly increasing temperature",
+                            crate::text::num(row[0]),
+                            crate::text::num(prev[0])
+                        ),
                     ));
                 }
             }
@@ -225,7 +228,7 @@ impl TableFluid {
                     .ok()
                     .filter(|x| x.is_finite() && *x > 0.0)
                     .map(Some)
-                    .ok_or_else(|| err(0, format!("metadata '{key}: {v}' must be a positive number"))),
+                    .ok_or_else(|| err(0, format!("metadata '{key}' is {} but must be a positive number", crate::text::quote(v, 24)))),
             }
         };
         let t: Vec<f64> = rows.iter().map(|r| r[0]).collect();

@@ -9,6 +9,9 @@ pub mod transient;
 
 pub use banded::Banded;
 pub use blocktri::BlockTridiagonal;
+/// Most cells a case may ask for.
+pub const MAX_CELLS: usize = 10_000_000;
+
 pub use steady::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 
 /// A small deterministic random generator for the linear-algebra tests (values in ±½).

@@ -102,17 +102,17 @@ pub enum SolveError {
         suggestion: String,
     },
     /// The linear system could not be solved (singular or non-finite).
-    #[error("the Newton linear system became singular or non-finite near x = {position_m:.4} m; check that flows, film coefficients and wall data are positive and physically sized")]
+    #[error("the Newton linear system became singular or non-finite near x = {} m; check that flows, film coefficients and wall data are positive and physically sized", crate::text::num(*position_m))]
     Singular {
         /// Centre of the offending cell, m.
         position_m: f64,
     },
     /// The converged discrete solution violates the second law (the hot stream colder than
-    /// the cold one at some face): the cells are too long for the scheme.
+    /// the cold one at some face, or a stream beyond the inlet temperatures).
     #[error(
-        "the grid is too coarse: with {cells} cells the largest cell NTU is {max_cell_ntu:.3}, and the discrete solution breaks \
-         the second law by {deficit_k:.3e} K at x = {position_m:.4} m (hot colder than cold, or a stream beyond the inlet \
-         temperatures). Use at least {suggested_cells} cells ([solver] cells), or scheme = \"upwind\", which stays monotone on coarse grids"
+        "the solution breaks the second law by {} K at x = {} m (hot colder than cold, or a stream beyond the inlet \
+         temperatures) with {cells} cells, largest cell NTU {}. {}",
+        crate::text::num(*deficit_k), crate::text::num(*position_m), crate::text::num(*max_cell_ntu), advice_for(*suggested_cells, *max_cell_ntu)
     )]
     GridTooCoarse {
         /// Cells used.
@@ -123,15 +123,34 @@ pub enum SolveError {
         position_m: f64,
         /// Size of the violation there, K.
         deficit_k: f64,
-        /// Cells that bring the cell NTU to 0.5.
-        suggested_cells: usize,
+        /// Cells that bring the largest cell NTU to 0.5, where the cells are the cause
+        /// (None: the cells are already short, so more of them would not help).
+        suggested_cells: Option<usize>,
+    },
+    /// The hot inlet is not hotter than the cold inlet (possible through schedules).
+    #[error(
+        "the hot inlet ({} °C) is not hotter than the cold inlet ({} °C){}: the hot stream must be the hotter one at its inlet; \
+         change the inlet temperatures or their schedules (or swap [hot] and [cold])",
+        crate::text::num(*hot_c), crate::text::num(*cold_c), at.map(|t| format!(" at t = {} s", crate::text::num(t))).unwrap_or_default()
+    )]
+    InletsReversed {
+        /// Hot inlet, °C.
+        hot_c: f64,
+        /// Cold inlet, °C.
+        cold_c: f64,
+        /// Time in a transient, s.
+        at: Option<f64>,
     },
     /// The converged state leaves a fluid's valid range.
     #[error(
-        "the {stream} stream reaches {temperature_c:.3} °C at x = {position_m:.4} m, outside {fluid}'s valid \
-         range {min_c:.3} … {max_c:.3} °C ({reason})"
+        "the {stream} stream reaches {} °C at x = {} m{}, outside the valid range {} … {} °C of {fluid} ({reason})",
+        crate::text::num(*temperature_c), crate::text::num(*position_m),
+        time_s.map(|t| format!(" at t = {} s", crate::text::num(t))).unwrap_or_default(),
+        crate::text::num(*min_c), crate::text::num(*max_c)
     )]
     LeftRange {
+        /// Time in a transient, s (None for a steady solve).
+        time_s: Option<f64>,
         /// "hot" or "cold".
         stream: &'static str,
         /// Fluid name.
@@ -147,6 +166,20 @@ pub enum SolveError {
         /// Why the range ends there.
         reason: String,
     },
+}
+
+/// What to do about a second-law violation.
+fn advice_for(suggested: Option<usize>, max_cell_ntu: f64) -> String {
+    match suggested {
+        Some(n) => format!(
+            "The cells are too long for the scheme: use at least {n} cells ([solver] cells), or scheme = \"upwind\", which stays monotone on coarse grids"
+        ),
+        None => format!(
+            "The cells are already short (largest cell NTU {}), so more cells will not help: check the inputs \
+             (property data that are not smooth, a fluid table with too few rows, extreme film coefficients)",
+            crate::text::num(max_cell_ntu)
+        ),
+    }
 }
 
 /// Fill residuals; return Σ|r|.
@@ -375,6 +408,9 @@ fn unpack(lay: &Grid, dx: f64, x: &[Vector3<f64>], iterations: usize, res: f64) 
 /// 2; the error names the grid that fixes it instead of returning an impossible profile.
 fn check_second_law(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
+    if th <= tc {
+        return Err(SolveError::InletsReversed { hot_c: th, cold_c: tc, at: None });
+    }
     let tol = 1e-9 * (th - tc).abs().max(1.0);
     // Violation at each face: hot below cold, or either stream outside [T_c,in, T_h,in].
     let worst = s
@@ -399,8 +435,21 @@ fn check_second_law(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError
         max_cell_ntu,
         position_m: worst.0 as f64 * s.dx_m,
         deficit_k: worst.1,
-        suggested_cells: ((s.cells as f64 * max_cell_ntu / 0.5).ceil() as usize).max(s.cells + 1),
+        suggested_cells: suggested_cells(s.cells, max_cell_ntu),
     })
+}
+
+/// Cells for a largest cell NTU of 0.5 (four times inside the trapezoidal scheme's limit of
+/// about 2), rounded up to a round number; None where the cells are not the cause (already
+/// below 0.5) or no grid within the limit would do.
+fn suggested_cells(cells: usize, max_cell_ntu: f64) -> Option<usize> {
+    if !(max_cell_ntu.is_finite() && max_cell_ntu > 0.5) {
+        return None;
+    }
+    let raw = cells as f64 * max_cell_ntu / 0.5;
+    let step = 10f64.powf(raw.log10().floor() - 1.0).max(1.0);
+    let n = (raw / step).ceil() * step;
+    (n <= crate::solve::MAX_CELLS as f64).then_some(n as usize).filter(|&n| n > cells)
 }
 
 fn check_ranges(ex: &Exchanger, s: &SteadySolution) -> Result<(), SolveError> {
@@ -419,13 +468,10 @@ pub(crate) fn check_faces_in_range(ex: &Exchanger, hot: &[f64], cold: &[f64], dx
         for (j, &t) in order {
             if !(t >= min_c - 1e-9 && t <= max_c + 1e-9) {
                 let range = stream.fluid.range();
-                let fluid = match time {
-                    Some(t) => format!("{} (at t = {t:.3} s)", stream.fluid.name()),
-                    None => stream.fluid.name(),
-                };
                 return Err(SolveError::LeftRange {
+                    time_s: time,
                     stream: name,
-                    fluid,
+                    fluid: stream.fluid.name(),
                     position_m: j as f64 * dx,
                     temperature_c: t,
                     min_c: range.min_c,

@@ -391,6 +391,16 @@ impl Model<'_> {
     }
 }
 
+/// What to try after an integrator stopped: the other integrator is named only where it
+/// is the other one.
+fn advice_for_stop(integrator: &str) -> &'static str {
+    if integrator == "explicit" {
+        "Try integrator = \"implicit\" (stiffly stable), a looser tolerance_K, or fewer cells"
+    } else {
+        "Try a looser tolerance_K, fewer cells, or smoother schedules (a ramp instead of a step); check the inputs for a flow or temperature far outside the steady case"
+    }
+}
+
 /// Why a transient run could not start or finish.
 #[derive(Debug, Clone, thiserror::Error, PartialEq)]
 pub enum TransientError {
@@ -398,7 +408,7 @@ pub enum TransientError {
     #[error(transparent)]
     Solve(#[from] SolveError),
     /// The integrator could not advance.
-    #[error("the {integrator} integrator stopped in the step range starting at t = {time_s:.4} s: {reason}. Try the implicit integrator, looser tolerances, or fewer cells")]
+    #[error("the {integrator} integrator stopped in the step range starting at t = {} s: {reason}. {}", crate::text::num(*time_s), advice_for_stop(integrator))]
     Stalled {
         /// Which integrator.
         integrator: &'static str,
@@ -471,7 +481,11 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
         Ok(())
     };
     record(&mut run, 0.0, &y, &model)?;
-    let is_output = |t: f64| t == t_end || outputs.iter().any(|&o| (o - t).abs() < 1e-12 * t_end.max(1.0));
+    // Outputs are sorted: look up the nearest by bisection (a linear scan made long runs O(n²)).
+    let is_output = |t: f64| {
+        let k = outputs.partition_point(|&o| o < t);
+        t == t_end || [k.checked_sub(1), Some(k)].into_iter().flatten().filter_map(|j| outputs.get(j)).any(|&o| (o - t).abs() < 1e-12 * t_end.max(1.0))
+    };
     match settings.integrator {
         Integrator::Explicit => {
             let mut t = 0.0;
