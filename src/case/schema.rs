@@ -146,13 +146,15 @@ const ROOT: &[Field] = &[
 pub struct Shape {
     /// Problems found.
     pub problems: Vec<Problem>,
-    /// True if every problem is an unknown key (the rest of the file can still be read
-    /// with those keys removed, so value problems can be reported in the same pass).
-    pub only_unknown_keys: bool,
     /// Dotted paths of the unknown keys.
     pub unknown: Vec<Vec<String>>,
     /// Dotted keys suggested for misspellings (not to be reported again as missing).
     pub suggested: Vec<String>,
+    /// Keys holding a word outside their choices, with a valid word to stand in for it so
+    /// that the rest of the file can still be checked.
+    pub bad_words: Vec<(Vec<String>, &'static str)>,
+    /// Keys holding a value of the wrong type (set aside like unknown keys).
+    pub wrong_type: Vec<Vec<String>>,
 }
 
 /// 1-based line of a byte offset.
@@ -175,7 +177,7 @@ fn describe(v: &Value) -> String {
 /// Check the shape of `text`; Err(message) for TOML syntax errors.
 pub fn check(text: &str) -> Result<Shape, String> {
     let doc = ImDocument::parse(text).map_err(|e| e.to_string())?;
-    let mut shape = Shape { problems: Vec::new(), only_unknown_keys: true, unknown: Vec::new(), suggested: Vec::new() };
+    let mut shape = Shape { problems: Vec::new(), unknown: Vec::new(), suggested: Vec::new(), bad_words: Vec::new(), wrong_type: Vec::new() };
     walk(text, doc.as_table(), &mut Vec::new(), ROOT, None, &mut shape);
     Ok(shape)
 }
@@ -209,7 +211,9 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
                 Item::None => "nothing".into(),
             };
             shape.problems.push(Problem { key: dotted(path, key), line, message: format!("expected {expected}, found {found}") });
-            shape.only_unknown_keys = false;
+            let mut p = path.clone();
+            p.push(key.to_string());
+            shape.wrong_type.push(p);
         };
         match (field.ty, item) {
             (Ty::Num, Item::Value(Value::Float(_) | Value::Integer(_))) => {}
@@ -224,13 +228,15 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
                         key: dotted(path, key),
                         line,
                         message: format!(
-                            "\"{}\" is not valid for the {}.{hint} Valid: {}",
-                            s.value(),
+                            "{} is not valid for the {}.{hint} Valid: {}",
+                            crate::text::quote(s.value(), 40),
                             field.hint,
                             words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ")
                         ),
                     });
-                    shape.only_unknown_keys = false;
+                    let mut p = path.clone();
+                    p.push(key.to_string());
+                    shape.bad_words.push((p, words[0]));
                 }
             }
             (Ty::Str(words), _) => {
@@ -266,8 +272,49 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
             _ => format!("is missing: give {}", field.hint),
         };
         shape.problems.push(Problem { key: dotted(path, field.key), line: header_line, message: what });
-        shape.only_unknown_keys = false;
     }
+}
+
+/// `text` with the unknown and wrong-typed keys removed and invalid words replaced by a
+/// valid stand-in, so the rest of the file can be read and its values checked.
+pub fn readable(text: &str, shape: &Shape) -> String {
+    let Ok(mut doc) = text.parse::<toml_edit::DocumentMut>() else { return text.to_string() };
+    fn set(table: &mut dyn TableLike, path: &[String], word: &str) {
+        match path {
+            [] => {}
+            [last] => {
+                if let Some(item) = table.get_mut(last) {
+                    *item = toml_edit::value(word);
+                }
+            }
+            [first, rest @ ..] => {
+                if let Some(t) = table.get_mut(first).and_then(|i| i.as_table_like_mut()) {
+                    set(t, rest, word);
+                }
+            }
+        }
+    }
+    for (path, word) in &shape.bad_words {
+        set(doc.as_table_mut(), path, word);
+    }
+    without(&doc.to_string(), &[shape.unknown.clone(), shape.wrong_type.clone()].concat())
+}
+
+/// Line of a dotted key in `text`: the key itself, or else the deepest table on its path
+/// that exists (where a missing key belongs).
+pub fn line_of_key(text: &str, dotted: &str) -> Option<usize> {
+    let doc = ImDocument::parse(text).ok()?;
+    let mut table: &dyn TableLike = doc.as_table();
+    let mut line = None;
+    for part in dotted.split('.') {
+        let Some(item) = table.get(part) else { return line };
+        line = table.key(part).and_then(|k| k.span()).or_else(|| item.span()).map(|s| line_of(text, s.start)).or(line);
+        match item.as_table_like() {
+            Some(t) => table = t,
+            None => return line,
+        }
+    }
+    line
 }
 
 /// `text` with the unknown keys removed (so the rest can be read).

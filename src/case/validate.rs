@@ -263,14 +263,18 @@ pub fn parse_str(text: &str, origin: &str, default_name: &str) -> Result<Case, C
 /// keys, the values are checked too (with those keys set aside) and reported together.
 pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -> Result<Case, CaseError> {
     let shape = super::schema::check(text).map_err(|message| CaseError::Syntax { origin: origin.into(), message })?;
-    let invalid = |problems: Vec<Problem>| CaseError::Invalid { origin: origin.into(), problems };
-    if !shape.problems.is_empty() && !shape.only_unknown_keys {
-        return Err(invalid(shape.problems));
-    }
-    let cleaned = if shape.unknown.is_empty() { text.to_string() } else { super::schema::without(text, &shape.unknown) };
+    let invalid = |mut problems: Vec<Problem>| {
+        for p in problems.iter_mut().filter(|p| p.line.is_none()) {
+            p.line = super::schema::line_of_key(text, &p.key);
+        }
+        CaseError::Invalid { origin: origin.into(), problems }
+    };
+    let clean = shape.problems.is_empty();
+    let cleaned = if clean { text.to_string() } else { super::schema::readable(text, &shape) };
     let file: CaseFile = match toml::from_str(&cleaned) {
         Ok(f) => f,
-        Err(e) if shape.problems.is_empty() => return Err(CaseError::Syntax { origin: origin.into(), message: e.to_string() }),
+        Err(e) if clean => return Err(CaseError::Syntax { origin: origin.into(), message: e.to_string() }),
+        // The shape problems leave too little to read the values (a required key missing).
         Err(_) => return Err(invalid(shape.problems)),
     };
     let mut problems = shape.problems.clone();
@@ -286,8 +290,19 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
         }
         Ok(_) => Err(invalid(problems)),
         Err(more) => {
-            // A key already suggested for a misspelling is not reported again as missing.
-            problems.extend(more.into_iter().filter(|p| !(shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))));
+            // Value problems are kept unless they follow from a shape problem: a key already
+            // suggested for a misspelling is not reported again as missing; a key set aside
+            // for its type is not reported again; and where a word that selects what a table
+            // holds (a geometry kind, a film model) is invalid, that table's other keys
+            // cannot be judged.
+            let set_aside: Vec<String> = shape.wrong_type.iter().chain(&shape.unknown).map(|p| p.join(".")).collect();
+            let selectors: Vec<String> = shape.bad_words.iter().filter(|(p, _)| p.len() > 1).map(|(p, _)| format!("{}.", p[..p.len() - 1].join("."))).collect();
+            problems.extend(more.into_iter().filter(|p| {
+                !(shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))
+                    && !set_aside.iter().any(|k| p.key == *k || p.message.contains(k.as_str()))
+                    && !selectors.iter().any(|t| p.key.starts_with(t.as_str()))
+                    && !shape.bad_words.iter().any(|(b, _)| b.join(".") == p.key)
+            }));
             Err(invalid(problems))
         }
     }
