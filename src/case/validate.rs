@@ -297,12 +297,13 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
             // cannot be judged.
             let set_aside: Vec<String> = shape.wrong_type.iter().chain(&shape.unknown).map(|p| p.join(".")).collect();
             let selectors: Vec<String> = shape.bad_words.iter().filter(|(p, _)| p.len() > 1).map(|(p, _)| format!("{}.", p[..p.len() - 1].join("."))).collect();
-            problems.extend(more.into_iter().filter(|p| {
-                !(shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))
-                    && !set_aside.iter().any(|k| p.key == *k || p.message.contains(k.as_str()))
-                    && !selectors.iter().any(|t| p.key.starts_with(t.as_str()))
-                    && !shape.bad_words.iter().any(|(b, _)| b.join(".") == p.key)
-            }));
+            let follows_from_shape = |p: &Problem| {
+                (shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))
+                    || set_aside.iter().any(|k| p.key == *k || p.message.contains(k.as_str()))
+                    || selectors.iter().any(|t| p.key.starts_with(t.as_str()))
+                    || shape.bad_words.iter().any(|(b, _)| b.join(".") == p.key)
+            };
+            problems.extend(more.into_iter().filter(|p| !follows_from_shape(p)));
             Err(invalid(problems))
         }
     }
