@@ -178,7 +178,7 @@ impl TableFluid {
                         .iter()
                         .zip(&want)
                         .position(|(a, b)| a != b)
-                        .map(|i| format!("column {} is {} but must be '{}'", i + 1, crate::text::quote(cols[i], 24), want[i]))
+                        .map(|i| format!("column {} is {} but must be '{}'", i + 1, crate::text::quote(cols[i], 20), want[i]))
                         .unwrap_or_else(|| format!("{} columns given, {} required", cols.len(), want.len()));
                     return Err(err(line_no, format!("the header line (names with units) must be exactly '{HEADER}': {detail}")));
                 }
