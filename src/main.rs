@@ -9,6 +9,7 @@ use hxgrid::output::WriteOptions;
 use hxgrid::results::SteadyReport;
 use hxgrid::solve::Observer;
 use hxgrid::study::{self, RatingOptions};
+use hxgrid::text::num;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
@@ -29,7 +30,7 @@ macro_rules! outln {
 macro_rules! errln {
     ($($arg:tt)*) => {{
         use std::io::Write as _;
-        let _ = writeln!(std::io::stderr(), "{}", hxgrid::text::safe_message(&format!($($arg)*), 600, 200));
+        let _ = writeln!(std::io::stderr(), "{}", hxgrid::text::safe_message(&format!($($arg)*), 400, 50));
     }};
 }
 
@@ -80,7 +81,7 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
         _ => None,
     };
     let p_pa = match pressure_bar {
-        Some(p) if !(p.is_finite() && p > 0.0) => return bad(format!("--pressure-bar {p} must be a positive number of bar (absolute)")),
+        Some(p) if !(p.is_finite() && p > 0.0) => return bad(format!("--pressure-bar {p} must be a positive number of bar (absolute)", p = num(p))),
         Some(p) => p * 1e5,
         None => table_p.unwrap_or(101_325.0),
     };
@@ -91,16 +92,16 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
     let r = f.range();
     let (lo, hi) = (from.unwrap_or(r.min_c), to.unwrap_or(r.max_c));
     if !(lo.is_finite() && hi.is_finite() && hi >= lo) {
-        return bad(format!("--from {lo} and --to {hi}: need finite temperatures with --to ≥ --from"));
+        return bad(format!("--from {lo} and --to {hi}: need finite temperatures with --to ≥ --from", lo = num(lo), hi = num(hi)));
     }
     for (flag, t) in [("--from", lo), ("--to", hi)] {
         if t < r.min_c - 1e-9 || t > r.max_c + 1e-9 {
-            return bad(format!("{flag} {t} °C is outside {}'s valid range {:.2} … {:.2} °C ({})", f.name(), r.min_c, r.max_c, r.reason));
+            return bad(format!("{flag} {t} °C is outside {}'s valid range {:.2} … {:.2} °C ({})", f.name(), r.min_c, r.max_c, r.reason, t = num(t)));
         }
     }
     let step = step.unwrap_or(((hi - lo) / 20.0).max(1e-6));
     if !(step.is_finite() && step > 0.0) {
-        return bad(format!("--step {step} must be a positive number of kelvin"));
+        return bad(format!("--step {step} must be a positive number of kelvin", step = num(step)));
     }
     outln!("{} at {:.5} bar (valid {:.2} … {:.2} °C)", f.name(), p_pa * 1e-5, r.min_c, r.max_c);
     if let FluidChoice::Table(t) = &choice {

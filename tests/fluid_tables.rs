@@ -118,6 +118,9 @@ fn bad_tables_are_rejected_with_file_and_line() {
     let good_rows = "20,870,1850,0.03,0.13\n40,857,1930,0.012,0.128\n60,845,2010,0.006,0.126\n";
     let ok = format!("# hxgrid fluid table\n{TABLE_HEADER}\n{good_rows}");
     assert!(TableFluid::parse(&ok, "ok.csv").is_ok());
+    // Regression: a byte-order mark (as spreadsheet programs save CSV) was reported as
+    // "'temperature_C' must be 'temperature_C'"; it is not part of the text.
+    assert!(TableFluid::parse(&format!("\u{feff}{TABLE_HEADER}\n{good_rows}"), "bom.csv").is_ok());
     let cases = [
         (format!("{TABLE_HEADER}\n20,870,1850,0.03,0.13\n15,857,1930,0.012,0.128\n"), "line 3", "increasing"),
         (format!("{TABLE_HEADER}\n20,870,-1850,0.03,0.13\n40,857,1930,0.012,0.128\n"), "line 2", "specific_heat_J_kgK"),
