@@ -162,6 +162,8 @@ pub struct SteadyReport {
     pub case: String,
     /// Arrangement.
     pub arrangement: &'static str,
+    /// Spatial scheme (its formal order is `grid_error_estimate.order`).
+    pub scheme: &'static str,
     /// Length, m.
     pub length_m: f64,
     /// Hot fluid description.

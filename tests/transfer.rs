@@ -49,7 +49,7 @@ fn annulus_laminar_table() {
 #[test]
 fn film_from_tube_flow() {
     let d = 0.02;
-    let ch = Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, 3.66, 2.0);
+    let ch = Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, hxgrid::transfer::LaminarConstants::TUBE, 2.0);
     let props = Props { density: 998.0, cp: 4182.0, viscosity: 1.0e-3, conductivity: 0.6 };
     let m = 0.5;
     let fluid = ConstantFluid::new(props);

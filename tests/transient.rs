@@ -83,7 +83,7 @@ fn duct(length: f64, h: f64, area_per_length: f64, flow_area: f64, m: f64, rho: 
         inlet_pressure_pa: 1e5,
         fouling_m2k_w: 0.0,
         film: Arc::new(FixedFilm { h }),
-        channel: Channel::duct(flow_area, 0.05, area_per_length, 3.66, length),
+        channel: Channel::duct(flow_area, 0.05, area_per_length, hxgrid::transfer::LaminarConstants::TUBE, length),
     };
     Exchanger {
         arrangement: Arrangement::Counterflow,

@@ -165,6 +165,13 @@ pub enum LaminarName {
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
 #[serde(rename_all = "snake_case")]
+pub enum TransitionName {
+    Blend,
+    None,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "snake_case")]
 pub enum WallCorrectionName {
     None,
     Viscosity,
@@ -217,6 +224,8 @@ pub struct StreamFile {
     pub laminar: Option<LaminarName>,
     /// Wall-to-bulk property correction (default none).
     pub wall_correction: Option<WallCorrectionName>,
+    /// Laminar–turbulent transition: "blend" (default) or "none".
+    pub transition: Option<TransitionName>,
     /// Absolute wall roughness for friction, m (default 0, smooth).
     pub roughness_m: Option<f64>,
     pub compact: Option<CompactFile>,

@@ -68,6 +68,7 @@ const STREAM: &[Field] = &[
     f("film_coefficient_W_m2K", Ty::Num, false, "W/(m²·K)"),
     f("laminar", Ty::Str(&["fully_developed", "fully_developed_flux", "hausen", "sieder_tate"]), false, "laminar model"),
     f("wall_correction", Ty::Str(&["none", "viscosity", "gas_temperature"]), false, "property-ratio correction"),
+    f("transition", Ty::Str(&["blend", "none"]), false, "laminar–turbulent transition"),
     f("roughness_m", Ty::Num, false, "m"),
     f("properties", Ty::Table(PROPERTIES), false, "constant properties"),
     f("compact", Ty::Table(COMPACT), false, "compact surface"),

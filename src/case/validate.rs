@@ -9,8 +9,8 @@ use crate::solve::transient::{Initial, Inputs, Integrator, Signal, TransientSett
 use crate::solve::SteadySettings;
 use crate::text::num;
 use crate::transfer::{
-    Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, Layout, TubeBank, Turbulent, Wall, WallCorrection, Zukauskas,
-    NU_TUBE_LAMINAR_T,
+    Channel, CompactSurface, FilmCorrelation, Fin, FixedFilm, InternalFlow, Laminar, LaminarConstants, Layout, Transition, TubeBank, Turbulent, Wall,
+    WallCorrection, Zukauskas,
 };
 use std::f64::consts::PI;
 use std::path::Path;
@@ -441,8 +441,11 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     }
     let defaults = SteadySettings::default();
     let cells = f.solver.cells.unwrap_or(defaults.cells as i64);
-    if !(1..=crate::solve::MAX_CELLS as i64).contains(&cells) {
-        c.fail("solver.cells", format!("{cells} is not valid: use a whole number from 1 to 10 000 000"));
+    if !(2..=crate::solve::MAX_CELLS as i64).contains(&cells) {
+        c.fail(
+            "solver.cells",
+            format!("{cells} is not valid: use a whole number from 2 to 10 000 000 (every run also solves at half the cells to estimate its grid error)"),
+        );
     }
     let tolerance = f.solver.residual_tolerance.unwrap_or(defaults.tolerance);
     if !(tolerance > 0.0 && tolerance < 1.0) {
@@ -965,6 +968,29 @@ fn compact_data(path: &Path) -> Result<Vec<(f64, f64, f64)>, String> {
     Ok(rows)
 }
 
+/// Largest relative roughness ε/D accepted (the end of the Moody chart).
+pub const MAX_RELATIVE_ROUGHNESS: f64 = 0.05;
+
+/// The hydraulic diameter of a stream's passage, where the geometry gives one.
+fn hydraulic_diameter(geometry: &Geometry, side: &str, film: &FilmSpec) -> Option<f64> {
+    if let FilmSpec::Compact { hydraulic_diameter_m, .. } = film {
+        return Some(*hydraulic_diameter_m);
+    }
+    let in_tubes = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
+    match (geometry, in_tubes) {
+        (Geometry::DoublePipe { di, .. }, Some(true)) | (Geometry::TubeBank { di, .. }, Some(true)) => Some(*di),
+        (Geometry::DoublePipe { d_o, ds, .. }, Some(false)) => Some(ds - d_o),
+        (Geometry::PlaneWall { hot, cold, .. }, _) => {
+            if side == "hot" {
+                hot.1
+            } else {
+                cold.1
+            }
+        }
+        _ => None,
+    }
+}
+
 fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> FilmSpec {
     let key = |k: &str| format!("{side}.{k}");
     let is_tube_side = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
@@ -975,9 +1001,15 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
     if s.compact.is_some() && s.film != FilmName::Compact {
         c.fail(&key("compact"), "is only used with film = \"compact\": remove the table, or set film = \"compact\"".into());
     }
-    if !internal && (s.laminar.is_some() || s.wall_correction.is_some()) {
+    if !internal && (s.laminar.is_some() || s.wall_correction.is_some() || s.transition.is_some()) {
         c.fail(
-            &key(if s.laminar.is_some() { "laminar" } else { "wall_correction" }),
+            &key(if s.laminar.is_some() {
+                "laminar"
+            } else if s.wall_correction.is_some() {
+                "wall_correction"
+            } else {
+                "transition"
+            }),
             "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate) only: remove it".into(),
         );
     }
@@ -1078,6 +1110,10 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
                 Some(WallCorrectionName::Viscosity) => WallCorrection::Viscosity,
                 Some(WallCorrectionName::GasTemperature) => WallCorrection::GasTemperature,
             },
+            transition: match s.transition {
+                None | Some(TransitionName::Blend) => Transition::Blend,
+                Some(TransitionName::None) => Transition::None,
+            },
         }),
     }
 }
@@ -1117,6 +1153,21 @@ fn stream(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry
                 roughness_m = num(roughness_m)
             ),
         );
+    }
+    // Relative roughness above about 0.05 is beyond every friction chart (Moody's ends there;
+    // Churchill's formula even turns back, giving less friction for a rougher wall).
+    if let Some(d) = hydraulic_diameter(geometry, side, &film).filter(|d| d.is_finite() && *d > 0.0) {
+        if roughness_m.is_finite() && roughness_m / d > MAX_RELATIVE_ROUGHNESS {
+            c.fail(
+                &key("roughness_m"),
+                format!(
+                    "{} m is {} of the hydraulic diameter {} m, beyond the friction charts (ε/D ≤ {MAX_RELATIVE_ROUGHNESS}): check the units (commercial steel is about 4.5e-5 m)",
+                    num(roughness_m),
+                    num(roughness_m / d),
+                    num(d)
+                ),
+            );
+        }
     }
     let fluid = fluid_choice(c, side, s, base_dir);
     // Pressure: given, else the table's own pressure, else one atmosphere.
@@ -1288,8 +1339,8 @@ impl Case {
         let l = self.length_m;
         let (wall, hot_channel, cold_channel, reference) = match &self.geometry {
             &Geometry::DoublePipe { di, d_o, ds, k, tube_side, annulus_equivalent_diameter } => {
-                let tube = Channel::duct(PI * di * di / 4.0, di, PI * di, NU_TUBE_LAMINAR_T, l);
-                let mut annulus = Channel::duct(PI * (ds * ds - d_o * d_o) / 4.0, ds - d_o, PI * d_o, Channel::annulus_laminar_nusselt(d_o / ds), l);
+                let tube = Channel::duct(PI * di * di / 4.0, di, PI * di, LaminarConstants::TUBE, l);
+                let mut annulus = Channel::duct(PI * (ds * ds - d_o * d_o) / 4.0, ds - d_o, PI * d_o, LaminarConstants::annulus(d_o / ds), l);
                 if annulus_equivalent_diameter {
                     annulus.heat_diameter_m = Some((ds * ds - d_o * d_o) / d_o);
                 }
@@ -1300,13 +1351,12 @@ impl Case {
                 }
             }
             Geometry::PlaneWall { area_per_length, thickness, k, hot, cold } => {
-                // Laminar fallback: parallel plates heated on one side, the other insulated
-                // (Incropera Table 8.2, Di/Do → 1): Nu = 4.86.
+                // Laminar: parallel plates heated on one side, the other insulated.
                 let channel = |(a, d): (Option<f64>, Option<f64>)| Channel {
                     flow_area_m2: a,
                     hydraulic_diameter_m: d,
                     volume_per_length_m2: a,
-                    ..Channel::duct(1.0, 1.0, *area_per_length, Channel::annulus_laminar_nusselt(1.0), l)
+                    ..Channel::duct(1.0, 1.0, *area_per_length, LaminarConstants::PLATES_ONE_SIDE, l)
                 };
                 let wall = Wall::Plane { thickness_m: *thickness, conductivity_w_mk: *k, area_per_length_m: *area_per_length };
                 (wall, channel(*hot), channel(*cold), *area_per_length)
@@ -1315,10 +1365,12 @@ impl Case {
                 // Metres of tube per metre of bank depth.
                 let tubes_per_length = *tubes_per_row as f64 * tube_length / bank.longitudinal_pitch_m;
                 let d_o = bank.outer_diameter_m;
-                let circuit_length = bank.rows as f64 * tube_length;
+                // Each circuit threads rows × tubes_per_row / circuits tubes in series
+                // (validation requires the division to be exact).
+                let circuit_length = (bank.rows * tubes_per_row / circuits) as f64 * tube_length;
                 let inside = Channel {
                     volume_per_length_m2: Some(PI * di * di / 4.0 * tubes_per_length),
-                    ..Channel::duct(*circuits as f64 * PI * di * di / 4.0, *di, PI * di * tubes_per_length, NU_TUBE_LAMINAR_T, circuit_length)
+                    ..Channel::duct(*circuits as f64 * PI * di * di / 4.0, *di, PI * di * tubes_per_length, LaminarConstants::TUBE, circuit_length)
                 };
                 let outside = Channel {
                     flow_area_m2: Some(bank.frontal_area_m2),
@@ -1328,7 +1380,7 @@ impl Case {
                         *tubes_per_row as f64 * tube_length * (bank.transverse_pitch_m * bank.longitudinal_pitch_m - PI * d_o * d_o / 4.0)
                             / bank.longitudinal_pitch_m,
                     ),
-                    ..Channel::duct(1.0, 1.0, PI * d_o * tubes_per_length, NU_TUBE_LAMINAR_T, l)
+                    ..Channel::duct(1.0, 1.0, PI * d_o * tubes_per_length, LaminarConstants::TUBE, l)
                 };
                 let wall = Wall::Tube { inner_diameter_m: *di, outer_diameter_m: d_o, conductivity_w_mk: *k, tube_length_per_length: tubes_per_length };
                 match tube_side {

@@ -304,7 +304,7 @@ impl Exchanger {
 mod tests {
     use super::*;
     use crate::fluid::{Water, WaterPhase};
-    use crate::transfer::{Gnielinski, NU_TUBE_LAMINAR_T};
+    use crate::transfer::Gnielinski;
 
     /// The analytic-plus-side-difference Jacobian agrees with central differences of the
     /// full cell model (regression guard for sign or factor slips).
@@ -316,11 +316,12 @@ mod tests {
             laminar: crate::transfer::Laminar::SiederTate,
             turbulent: crate::transfer::Turbulent::SiederTate,
             wall_correction: crate::transfer::WallCorrection::Viscosity,
+            transition: crate::transfer::Transition::Blend,
         }));
     }
 
     fn jacobian_check(film: Arc<dyn FilmCorrelation>) {
-        let channel = |d: f64| Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, NU_TUBE_LAMINAR_T, 5.0);
+        let channel = |d: f64| Channel::duct(std::f64::consts::PI * d * d / 4.0, d, std::f64::consts::PI * d, crate::transfer::LaminarConstants::TUBE, 5.0);
         let stream = |m: f64, t: f64| Stream {
             fluid: Arc::new(Water::new(3e5, WaterPhase::Liquid).unwrap()),
             mass_flow_kg_s: m,

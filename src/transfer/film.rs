@@ -1,7 +1,7 @@
 //! Film-coefficient correlations behind one trait, each with its published validity range.
 
 use super::fin::{surface_efficiency, Fin};
-use super::Channel;
+use super::{Channel, LaminarConstants, NU_TUBE_LAMINAR_T};
 use crate::fluid::{Fluid, Props};
 use std::fmt::Debug;
 
@@ -61,7 +61,7 @@ pub trait FilmCorrelation: Send + Sync + Debug {
     /// available for this surface. Default: Churchill (1977) with the channel's roughness.
     fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
         let d = channel.hydraulic_diameter_m?;
-        Some(super::friction::darcy_churchill(reynolds.max(1e-9), channel.roughness_m / d))
+        Some(super::friction::darcy_churchill_shaped(reynolds.max(1e-9), channel.roughness_m / d, channel.laminar.f_re))
     }
 }
 
@@ -119,9 +119,16 @@ pub fn hausen_nusselt(gz: f64) -> f64 {
 
 /// Sieder–Tate combined entry, laminar, mean over L: Nu = 1.86 (Gz)^⅓ (μ/μ_s)^0.14, valid for
 /// 0.48 < Pr < 16 700, 0.0044 < μ/μ_s < 9.75 and Gz^⅓ (μ/μ_s)^0.14 ≥ 2 (Incropera Eq. 8.58 [M]);
-/// below that limit the fully developed 3.66 governs, so the larger of the two is used.
+/// below that limit the fully developed tube value 3.66 governs, so the larger of the two is used.
 pub fn sieder_tate_laminar_nusselt(gz: f64, mu_ratio: f64) -> f64 {
-    (1.86 * gz.powf(1.0 / 3.0) * mu_ratio.powf(0.14)).max(3.66)
+    sieder_tate_laminar_nusselt_floor(gz, mu_ratio, NU_TUBE_LAMINAR_T)
+}
+
+/// The same with the fully developed floor of another channel shape (an entry correlation
+/// never falls below the channel's own developed value: 5.74 in an annulus of Di/Do = ½,
+/// not the tube's 3.66).
+pub fn sieder_tate_laminar_nusselt_floor(gz: f64, mu_ratio: f64, nu_developed: f64) -> f64 {
+    (1.86 * gz.powf(1.0 / 3.0) * mu_ratio.powf(0.14)).max(nu_developed)
 }
 
 /// Laminar model for internal flow.
@@ -129,7 +136,7 @@ pub fn sieder_tate_laminar_nusselt(gz: f64, mu_ratio: f64) -> f64 {
 pub enum Laminar {
     /// Fully developed, uniform wall temperature (3.66 in a tube; the channel's own value).
     FullyDevelopedT,
-    /// Fully developed, uniform heat flux (48/11 = 4.36 in a tube; 1.19× the channel's T value elsewhere [M]).
+    /// Fully developed, uniform heat flux (48/11 = 4.36 in a tube; the channel's own published value elsewhere).
     FullyDevelopedH,
     /// Hausen thermal entry (mean over the flow length).
     Hausen,
@@ -160,6 +167,19 @@ pub enum WallCorrection {
     GasTemperature,
 }
 
+/// How internal flow passes from laminar to turbulent.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Transition {
+    /// Gnielinski's linear blend in Re between the laminar value at 2300 and the turbulent
+    /// correlation at 10⁴ (VDI Heat Atlas, 2nd ed. 2010, G1 [M]); cells in it are counted as
+    /// outside every correlation's range.
+    #[default]
+    Blend,
+    /// No blend: the laminar model below 2300, the turbulent correlation as published from
+    /// 2300 up (counted outside only where outside its own stated range). h jumps at 2300.
+    None,
+}
+
 /// Laminar limit of the transition blend.
 pub const RE_LAMINAR: f64 = 2300.0;
 /// Fully turbulent start of the blend.
@@ -178,6 +198,8 @@ pub struct InternalFlow {
     pub turbulent: Turbulent,
     /// Property-ratio correction.
     pub wall_correction: WallCorrection,
+    /// Laminar–turbulent transition.
+    pub transition: Transition,
 }
 
 /// Gnielinski's internal-flow set with fully developed laminar flow and no wall correction.
@@ -196,7 +218,13 @@ impl FilmCorrelation for Gnielinski {
         "gnielinski"
     }
     fn film(&self, i: &FilmInput) -> FilmResult {
-        InternalFlow { laminar: Laminar::FullyDevelopedT, turbulent: Turbulent::Gnielinski, wall_correction: WallCorrection::None }.film(i)
+        InternalFlow {
+            laminar: Laminar::FullyDevelopedT,
+            turbulent: Turbulent::Gnielinski,
+            wall_correction: WallCorrection::None,
+            transition: Transition::Blend,
+        }
+        .film(i)
     }
     fn validity(&self) -> String {
         "laminar Re < 2300; turbulent 10⁴ ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000 (Gnielinski 1976)".into()
@@ -214,38 +242,72 @@ fn blend(re: f64, nu_laminar: f64, turbulent_at_start: impl Fn() -> f64, turbule
     }
 }
 
+/// The local state an internal-flow correlation needs, all on the hydraulic diameter.
+#[derive(Debug, Clone, Copy)]
+pub struct FlowState {
+    /// Reynolds number.
+    pub re: f64,
+    /// Prandtl number (bulk).
+    pub pr: f64,
+    /// μ_bulk/μ_wall.
+    pub mu_ratio: f64,
+    /// Graetz number Re Pr D_h/L.
+    pub gz: f64,
+    /// True for the stream being heated.
+    pub heated: bool,
+}
+
 impl InternalFlow {
-    /// Nusselt number and whether the state is inside the chosen correlations' range.
-    pub fn nusselt(&self, re: f64, pr: f64, mu_ratio: f64, gz: f64, nu_fd: f64, heated: bool) -> (f64, bool) {
-        let laminar_at = |re_l: f64| -> (f64, bool) {
-            let gz_l = gz * re_l / re.max(1e-300);
-            match self.laminar {
-                Laminar::FullyDevelopedT => (nu_fd, true),
-                Laminar::FullyDevelopedH => (nu_fd * 48.0 / 11.0 / 3.66, true),
-                // Hausen's entry increment on top of the channel's own fully developed value
-                // (identical to Hausen for a tube, where that value is 3.66).
-                Laminar::Hausen => (hausen_nusselt(gz_l) - 3.66 + nu_fd, true),
-                Laminar::SiederTate => {
-                    let ok = (0.48..16_700.0).contains(&pr) && (0.0044..9.75).contains(&mu_ratio);
-                    (sieder_tate_laminar_nusselt(gz_l, mu_ratio), ok)
-                }
+    /// Laminar Nusselt number (on the hydraulic diameter) and whether it is in range.
+    fn laminar_nusselt(&self, pr: f64, mu_ratio: f64, gz: f64, shape: &LaminarConstants) -> (f64, bool) {
+        match self.laminar {
+            Laminar::FullyDevelopedT => (shape.nu_t, true),
+            Laminar::FullyDevelopedH => (shape.nu_h, true),
+            // Hausen's entry increment on top of the channel's own fully developed value
+            // (identical to Hausen for a tube, where that value is 3.66).
+            Laminar::Hausen => (hausen_nusselt(gz) - NU_TUBE_LAMINAR_T + shape.nu_t, true),
+            Laminar::SiederTate => {
+                let ok = (0.48..16_700.0).contains(&pr) && (0.0044..9.75).contains(&mu_ratio);
+                (sieder_tate_laminar_nusselt_floor(gz, mu_ratio, shape.nu_t), ok)
             }
-        };
-        let turbulent_at = |re_t: f64| -> (f64, bool) {
-            match self.turbulent {
-                Turbulent::Gnielinski => (gnielinski_nusselt(re_t, pr), (3000.0..=5e6).contains(&re_t) && (0.5..=2000.0).contains(&pr)),
-                Turbulent::DittusBoelter => (dittus_boelter_nusselt(re_t, pr, heated), re_t >= 1e4 && (0.6..=160.0).contains(&pr)),
-                Turbulent::SiederTate => (sieder_tate_turbulent_nusselt(re_t, pr, mu_ratio), re_t >= 1e4 && (0.7..=16_700.0).contains(&pr)),
-            }
-        };
-        if re <= RE_LAMINAR {
-            laminar_at(re)
-        } else if re >= RE_TURBULENT {
-            turbulent_at(re)
-        } else {
-            let gamma = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
-            ((1.0 - gamma) * laminar_at(RE_LAMINAR).0 + gamma * turbulent_at(RE_TURBULENT).0, false)
         }
+    }
+
+    /// Turbulent Nusselt number at `re` (on the correlation's own diameter) and whether the
+    /// state is inside the correlation's published range.
+    fn turbulent_nusselt(&self, re: f64, pr: f64, mu_ratio: f64, heated: bool) -> (f64, bool) {
+        match self.turbulent {
+            Turbulent::Gnielinski => (gnielinski_nusselt(re, pr), (3000.0..=5e6).contains(&re) && (0.5..=2000.0).contains(&pr)),
+            Turbulent::DittusBoelter => (dittus_boelter_nusselt(re, pr, heated), re >= 1e4 && (0.6..=160.0).contains(&pr)),
+            Turbulent::SiederTate => (sieder_tate_turbulent_nusselt(re, pr, mu_ratio), re >= 1e4 && (0.7..=16_700.0).contains(&pr)),
+        }
+    }
+
+    /// Film coefficient ×(D_h/k), i.e. Nu on the hydraulic diameter, over all regimes, and
+    /// whether the state is in range. `heat_ratio` is D_e/D_h, the turbulent correlations'
+    /// diameter over the hydraulic one (1 except for Kern's annulus practice).
+    pub fn nusselt(&self, state: &FlowState, shape: &LaminarConstants, heat_ratio: f64) -> (f64, bool) {
+        let FlowState { re, pr, mu_ratio, gz, heated } = *state;
+        let laminar_at = |re_l: f64| self.laminar_nusselt(pr, mu_ratio, gz * re_l / re.max(1e-300), shape);
+        // Nu_e k/D_e expressed on D_h: Nu_e / (D_e/D_h).
+        let turbulent_at = |re_t: f64| {
+            let (nu, ok) = self.turbulent_nusselt(re_t * heat_ratio, pr, mu_ratio, heated);
+            (nu / heat_ratio, ok)
+        };
+        match self.transition {
+            _ if re <= RE_LAMINAR => laminar_at(re),
+            Transition::None => turbulent_at(re),
+            Transition::Blend if re >= RE_TURBULENT => turbulent_at(re),
+            Transition::Blend => {
+                let gamma = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
+                ((1.0 - gamma) * laminar_at(RE_LAMINAR).0 + gamma * turbulent_at(RE_TURBULENT).0, false)
+            }
+        }
+    }
+
+    /// True where the turbulent correlation (not the laminar model) gives the value at `re`.
+    fn turbulent_regime(&self, re: f64) -> bool {
+        re > RE_LAMINAR && (self.transition == Transition::None || re >= RE_TURBULENT)
     }
 }
 
@@ -259,20 +321,21 @@ impl FilmCorrelation for InternalFlow {
     }
     fn film(&self, i: &FilmInput) -> FilmResult {
         let ch = i.channel;
-        let d_flow = ch.hydraulic_diameter_m.unwrap_or(1.0);
-        let d_heat = ch.heat_diameter_m.or(ch.hydraulic_diameter_m).unwrap_or(1.0);
+        let d_h = ch.hydraulic_diameter_m.unwrap_or(1.0);
+        let heat_ratio = ch.heat_diameter_m.map(|d| d / d_h).unwrap_or(1.0);
         let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
         let pr = i.props.prandtl();
         let needs_wall = self.uses_wall_temperature();
         let wall_props = if needs_wall { i.fluid.props(i.wall_c) } else { *i.props };
         let mu_ratio = i.props.viscosity / wall_props.viscosity;
-        let gz = re * pr * d_flow / ch.flow_length_m;
-        let (mut nu, mut ok) = self.nusselt(re, pr, mu_ratio, gz, ch.laminar_nusselt, i.heated);
+        let gz = re * pr * d_h / ch.flow_length_m;
+        let (mut nu, mut ok) = self.nusselt(&FlowState { re, pr, mu_ratio, gz, heated: i.heated }, &ch.laminar, heat_ratio);
+        let turbulent = self.turbulent_regime(re);
         match self.wall_correction {
             WallCorrection::None => {}
             WallCorrection::Viscosity => {
                 // Sieder–Tate correlations already carry the ratio: never apply it twice.
-                let included = (re >= RE_TURBULENT && self.turbulent == Turbulent::SiederTate) || (re <= RE_LAMINAR && self.laminar == Laminar::SiederTate);
+                let included = (turbulent && self.turbulent == Turbulent::SiederTate) || (re <= RE_LAMINAR && self.laminar == Laminar::SiederTate);
                 if !included {
                     nu *= mu_ratio.powf(0.14);
                 }
@@ -284,26 +347,39 @@ impl FilmCorrelation for InternalFlow {
                 }
             }
         }
-        if ch.flow_length_m / d_flow < 10.0 && re > RE_LAMINAR {
+        if ch.flow_length_m / d_h < 10.0 && re > RE_LAMINAR {
             ok = false; // turbulent correlations assume L/D ≥ 10
         }
-        FilmResult::bare(nu * i.props.conductivity / d_heat, Some(re), Some(nu), ok)
+        FilmResult::bare(nu * i.props.conductivity / d_h, Some(re), Some(nu), ok)
     }
     fn uses_wall_temperature(&self) -> bool {
         self.wall_correction != WallCorrection::None || matches!(self.laminar, Laminar::SiederTate) || matches!(self.turbulent, Turbulent::SiederTate)
     }
     fn validity(&self) -> String {
         let lam = match self.laminar {
-            Laminar::FullyDevelopedT | Laminar::FullyDevelopedH => "laminar fully developed, Re < 2300",
-            Laminar::Hausen => "Hausen thermal entry, Re < 2300",
-            Laminar::SiederTate => "Sieder–Tate entry, Re < 2300, 0.48 < Pr < 16 700, 0.0044 < μ/μ_w < 9.75",
+            Laminar::FullyDevelopedT | Laminar::FullyDevelopedH => "laminar fully developed, Re ≤ 2300",
+            Laminar::Hausen => "Hausen thermal entry, Re ≤ 2300",
+            Laminar::SiederTate => "Sieder–Tate entry, Re ≤ 2300, 0.48 < Pr < 16 700, 0.0044 < μ/μ_w < 9.75",
         };
-        let turb = match self.turbulent {
-            Turbulent::Gnielinski => "Gnielinski 3000 ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000",
-            Turbulent::DittusBoelter => "Dittus–Boelter Re ≥ 10⁴, 0.6 ≤ Pr ≤ 160, L/D ≥ 10",
-            Turbulent::SiederTate => "Sieder–Tate Re ≥ 10⁴, 0.7 ≤ Pr ≤ 16 700, L/D ≥ 10",
+        let (name, low, rest) = match self.turbulent {
+            Turbulent::Gnielinski => ("Gnielinski", 3000.0, "Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000"),
+            Turbulent::DittusBoelter => ("Dittus–Boelter", 1e4, "0.6 ≤ Pr ≤ 160, L/D ≥ 10"),
+            Turbulent::SiederTate => ("Sieder–Tate", 1e4, "0.7 ≤ Pr ≤ 16 700, L/D ≥ 10"),
         };
-        format!("{lam}; {turb}; 2300 ≤ Re < 10⁴ blended (outside both)")
+        let own = if low == 3000.0 { "3000" } else { "10⁴" };
+        match self.transition {
+            Transition::Blend => {
+                format!("{lam}; {name} {own} ≤ Re, {rest}, used from Re = 10⁴; 2300 < Re < 10⁴ blended linearly (counted outside every range)")
+            }
+            Transition::None => {
+                let gap = if low > RE_LAMINAR {
+                    format!(" (cells with 2300 < Re < {own} are outside {name}'s own range and counted so)")
+                } else {
+                    " (cells with 2300 < Re < 3000 are outside its own range and counted so)".into()
+                };
+                format!("{lam}; {name} from Re = 2300 as published, its range {own} ≤ Re, {rest}{gap}; no transition blend")
+            }
+        }
     }
 }
 
@@ -353,16 +429,19 @@ impl TubeBank {
         }
     }
 
-    /// Zukauskas constants (C₁, m) for Re_max, 1972 table as reproduced in Incropera Table 7.5.
-    /// Between 10² and 10³ the source says to use the single-cylinder result; the
-    /// single-cylinder Zukauskas constants C = 0.51, m = 0.5 (Re 40–1000, Incropera Table 7.4
-    /// [M]) are used there (with the bank's Pr exponent 0.36).
+    /// Zukauskas constants (C₁, m) for Re_max. Below 10² and above 10³: the 1972 table as
+    /// reproduced in Incropera Table 7.5. Between 10² and 10³, where that table only says to
+    /// use the single-cylinder result, the bank constants of Zukauskas' 1987 table (as in
+    /// Çengel, *Heat Transfer*, Table 7-2 [M]; METHODS.md §3): aligned C = 0.52, m = 0.5;
+    /// staggered 1.04/0.4 up to 500 and 0.71/0.5 above. Pr exponent 0.36 throughout.
     fn constants(&self, re: f64) -> (f64, f64) {
         let ratio = self.transverse_pitch_m / self.longitudinal_pitch_m;
         match (self.layout, re) {
             (Layout::Aligned, r) if r < 100.0 => (0.80, 0.40),
             (Layout::Staggered, r) if r < 100.0 => (0.90, 0.40),
-            (_, r) if r < 1000.0 => (0.51, 0.50),
+            (Layout::Aligned, r) if r < 1000.0 => (0.52, 0.50),
+            (Layout::Staggered, r) if r < 500.0 => (1.04, 0.40),
+            (Layout::Staggered, r) if r < 1000.0 => (0.71, 0.50),
             (Layout::Aligned, r) if r < 2e5 => (0.27, 0.63),
             (Layout::Staggered, r) if r < 2e5 => {
                 if ratio < 2.0 {
@@ -376,7 +455,16 @@ impl TubeBank {
         }
     }
 
+    /// Re_max at which the constants switch.
+    fn switches(&self) -> &'static [f64] {
+        match self.layout {
+            Layout::Aligned => &[100.0, 1000.0, 2e5],
+            Layout::Staggered => &[100.0, 500.0, 1000.0, 2e5],
+        }
+    }
+
     /// Row correction C₂ for N_L < 20 (Incropera Table 7.6), linear between tabulated rows.
+    /// The table holds for Re_max ≳ 10³ only.
     pub fn row_correction(&self) -> f64 {
         const ROWS: [f64; 9] = [1.0, 2.0, 3.0, 4.0, 5.0, 7.0, 10.0, 13.0, 16.0];
         const ALIGNED: [f64; 9] = [0.70, 0.80, 0.86, 0.90, 0.92, 0.95, 0.97, 0.98, 0.99];
@@ -397,28 +485,46 @@ impl TubeBank {
         1.0
     }
 
-    /// Nu = C₂ C₁ Re_max^m Pr^0.36 (Pr/Pr_s)^¼ without the switch smoothing (for checks).
-    pub fn nusselt_raw(&self, re_max: f64, pr: f64, pr_wall: f64) -> f64 {
-        let (c1, m) = self.constants(re_max);
-        self.row_correction() * c1 * re_max.powf(m) * pr.powf(0.36) * (pr / pr_wall).powf(0.25)
+    /// The row correction applied at `re`: tabulated only from Re_max = 10³ up, so 1 below
+    /// (and such cells are counted outside the range, see [`TubeBank::in_range`]).
+    fn row_correction_at(&self, re: f64) -> f64 {
+        if re >= 1000.0 {
+            self.row_correction()
+        } else {
+            1.0
+        }
     }
 
-    /// The same with each switch between constant sets (10², 10³, 2·10⁵) smoothed by a
-    /// linear blend in ln Re over ±5 %, so the film coefficient is continuous for Newton.
+    /// Inside the tabulated ranges: 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500; fewer than 20 rows
+    /// only where the row correction is tabulated (Re_max ≥ 10³); an aligned bank not with
+    /// S_T/S_L < 0.7, for which Zukauskas gives no constants (Incropera, note to Table 7.5).
+    pub fn in_range(&self, re_max: f64, pr: f64) -> bool {
+        let ratio = self.transverse_pitch_m / self.longitudinal_pitch_m;
+        (10.0..=2e6).contains(&re_max)
+            && (0.7..=500.0).contains(&pr)
+            && (self.rows >= 20 || re_max >= 1000.0)
+            && !(self.layout == Layout::Aligned && ratio < 0.7)
+    }
+
+    fn coefficient(&self, constants_at: f64, re: f64) -> f64 {
+        let (c1, m) = self.constants(constants_at);
+        self.row_correction_at(constants_at) * c1 * re.powf(m)
+    }
+
+    /// Nu = C₂ C₁ Re_max^m Pr^0.36 (Pr/Pr_s)^¼ without the switch smoothing (for checks).
+    pub fn nusselt_raw(&self, re_max: f64, pr: f64, pr_wall: f64) -> f64 {
+        self.coefficient(re_max, re_max) * pr.powf(0.36) * (pr / pr_wall).powf(0.25)
+    }
+
+    /// The same with each switch between constant sets smoothed by a linear blend in ln Re
+    /// over ±5 %, so the film coefficient is continuous for Newton.
     pub fn nusselt(&self, re_max: f64, pr: f64, pr_wall: f64) -> f64 {
-        for switch in [100.0, 1000.0, 2e5] {
+        for &switch in self.switches() {
             let (lo, hi) = (switch * 0.95, switch * 1.05);
             if re_max > lo && re_max < hi {
                 let w = (re_max / lo).ln() / (hi / lo).ln();
-                let below = self.row_correction() * {
-                    let (c1, m) = self.constants(lo);
-                    c1 * re_max.powf(m)
-                };
-                let above = self.row_correction() * {
-                    let (c1, m) = self.constants(hi);
-                    c1 * re_max.powf(m)
-                };
-                return ((1.0 - w) * below + w * above) * pr.powf(0.36) * (pr / pr_wall).powf(0.25);
+                let c = (1.0 - w) * self.coefficient(lo, re_max) + w * self.coefficient(hi, re_max);
+                return c * pr.powf(0.36) * (pr / pr_wall).powf(0.25);
             }
         }
         self.nusselt_raw(re_max, pr, pr_wall)
@@ -443,14 +549,21 @@ impl FilmCorrelation for Zukauskas {
         let pr = i.props.prandtl();
         let pr_wall = i.fluid.props(i.wall_c).prandtl();
         let nu = self.bank.nusselt(re_max, pr, pr_wall);
-        let ok = (10.0..=2e6).contains(&re_max) && (0.7..=500.0).contains(&pr);
+        let ok = self.bank.in_range(re_max, pr);
         FilmResult::bare(nu * i.props.conductivity / d, Some(re_max), Some(nu), ok)
     }
     fn uses_wall_temperature(&self) -> bool {
         true
     }
     fn validity(&self) -> String {
-        "Zukauskas 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500".into()
+        format!(
+            "Zukauskas 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500 (1972 constants; 1987 constants for 10² ≤ Re_max < 10³){}",
+            if self.bank.rows < 20 {
+                format!("; {} rows: row correction tabulated only for Re_max ≥ 10³, cells below counted outside", self.bank.rows)
+            } else {
+                String::new()
+            }
+        )
     }
     fn darcy_friction(&self, _: &Channel, _: f64) -> Option<f64> {
         None // no tube-bank friction correlation is implemented: reported as not computed
