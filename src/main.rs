@@ -302,7 +302,7 @@ fn print_transient(r: &hxgrid::scenario::TransientReport) {
     outln!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
     for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {
         outln!(
-            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16.2e}",
+            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16}",
             name,
             o.initial_C,
             o.final_C,
@@ -310,7 +310,7 @@ fn print_transient(r: &hxgrid::scenario::TransientReport) {
             f(o.settling_95_s),
             f(o.settling_99_s),
             o.overshoot_percent,
-            o.difference_from_steady_K
+            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (no flow)".into())
         );
     }
     outln!("\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);

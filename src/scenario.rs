@@ -26,10 +26,11 @@ pub struct OutletResponse {
     pub settling_99_s: Option<f64>,
     /// Largest excursion beyond the final value in the direction of the change, % of |change|.
     pub overshoot_percent: f64,
-    /// Steady solver's outlet for the final inputs, °C.
-    pub steady_final_C: f64,
+    /// Steady solver's outlet for the final inputs, °C (null where no steady state is
+    /// defined: both flows stopped at the end).
+    pub steady_final_C: Option<f64>,
     /// final − steady, K (how far from settled the run ended).
-    pub difference_from_steady_K: f64,
+    pub difference_from_steady_K: Option<f64>,
 }
 
 /// Everything a transient run reports.
@@ -123,7 +124,11 @@ pub fn run(
 ) -> Result<TransientReport, TransientError> {
     let run = simulate(ex, inputs, settings, observer)?;
     let end = settings.duration_s;
-    let steady = solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver)?;
+    let steady = match solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver) {
+        Ok(s) => Some(s),
+        Err(crate::solve::SolveError::NoFlow) => None,
+        Err(e) => return Err(e.into()),
+    };
     let times: Vec<f64> = run.samples.iter().map(|s| s.time_s).collect();
     let reference = [&inputs.hot_inlet_c, &inputs.hot_flow_kg_s, &inputs.cold_inlet_c, &inputs.cold_flow_kg_s]
         .iter()
@@ -135,7 +140,7 @@ pub fn run(
     // The response is measured on the samples from the reference time on.
     let from = times.iter().position(|&t| t >= reference - 1e-9).unwrap_or(0);
     let times_from = &times[from..];
-    let response = |values: Vec<f64>, steady_final: f64| {
+    let response = |values: Vec<f64>, steady_final: Option<f64>| {
         let v = &values[from..];
         OutletResponse {
             initial_C: v[0],
@@ -146,7 +151,7 @@ pub fn run(
             settling_99_s: settling_time(times_from, v, reference, 0.99),
             overshoot_percent: overshoot_percent(v),
             steady_final_C: steady_final,
-            difference_from_steady_K: v.last().unwrap() - steady_final,
+            difference_from_steady_K: steady_final.map(|s| v.last().unwrap() - s),
         }
     };
     let (first, last) = (&run.samples[0], run.samples.last().unwrap());
@@ -167,8 +172,8 @@ pub fn run(
             Initial::Uniform(t) => format!("uniform {t} °C (fluids and wall)"),
         },
         reference_time_s: reference,
-        hot_outlet: response(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.hot_outlet_c()),
-        cold_outlet: response(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.cold_outlet_c(ex.arrangement)),
+        hot_outlet: response(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.as_ref().map(|s| s.hot_outlet_c())),
+        cold_outlet: response(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.as_ref().map(|s| s.cold_outlet_c(ex.arrangement))),
         hot_heat_J: last.hot_heat_J,
         energy_closure_J: closure,
         energy_closure_relative: if last.hot_heat_J != 0.0 { (closure / last.hot_heat_J).abs() } else { 0.0 },

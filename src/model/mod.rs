@@ -191,6 +191,9 @@ pub struct CellDetail {
     pub r_hot_per_length: f64,
     /// Wall node to cold bulk resistance of one metre, K·m/W.
     pub r_cold_per_length: f64,
+    /// Weight β of the inflow face in each stream's bulk temperature, T_out + β(T_in − T_out)
+    /// (½ except in the trapezoidal scheme's short-circuit at high cell NTU; see `side`).
+    pub bulk_weight: [f64; 2],
 }
 
 /// Derivatives of the three steady residuals (hot, cold, wall) with respect to the cell's
@@ -210,11 +213,33 @@ impl Exchanger {
         (props, film, r)
     }
 
+    /// One stream's bulk temperature, properties, film and resistance in a cell. With the
+    /// trapezoidal scheme the bulk is T_out + β(T_in − T_out), and the cell balance gives
+    /// T_out − T_w = (T_in − T_w)(1 − Nβ)/(1 + N(1 − β)), N = Δx/(r ṁ cp) the stream's cell NTU
+    /// to the wall. The face mean β = ½ overshoots the wall once N > 2 (at zero flow it drove
+    /// a stagnant cell to 2T_w − T_in); so β = ½ up to N = 2 and β = 1/N beyond, continuous at
+    /// N = 2, Nβ ≤ 1 always, and 0 — the cell's own unknown, as in the upwind scheme — when the
+    /// flow stops. Below N = 2 nothing changes: second order, exact for balanced counterflow.
+    fn side(&self, stream: &Stream, t_in: f64, t_out: f64, nominal_bulk: f64, wall: f64, dx_m: f64) -> (f64, f64, Props, FilmResult, f64) {
+        let (props, film, r) = self.side_resistance(stream, nominal_bulk, wall);
+        if self.scheme != Scheme::Trapezoidal {
+            return (nominal_bulk, 0.5, props, film, r);
+        }
+        // u = 1/N, finite at zero flow.
+        let u = r * stream.mass_flow_kg_s * props.cp / dx_m;
+        if u >= 0.5 || !u.is_finite() {
+            return (nominal_bulk, 0.5, props, film, r);
+        }
+        let beta = u;
+        let bulk = t_out + beta * (t_in - t_out);
+        let (props, film, r) = self.side_resistance(stream, bulk, wall);
+        (bulk, beta, props, film, r)
+    }
+
     /// The cell model: heat rates of a cell of length `dx_m` at temperatures `t`.
     pub fn cell(&self, dx_m: f64, t: &CellTemps) -> CellDetail {
-        let (hot_bulk_c, cold_bulk_c) = (t.hot_bulk, t.cold_bulk);
-        let (hot_props, hot_film, r_hot) = self.side_resistance(&self.hot, hot_bulk_c, t.wall);
-        let (cold_props, cold_film, r_cold) = self.side_resistance(&self.cold, cold_bulk_c, t.wall);
+        let (hot_bulk_c, beta_hot, hot_props, hot_film, r_hot) = self.side(&self.hot, t.hot_in, t.hot_out, t.hot_bulk, t.wall, dx_m);
+        let (cold_bulk_c, beta_cold, cold_props, cold_film, r_cold) = self.side(&self.cold, t.cold_in, t.cold_out, t.cold_bulk, t.wall, dx_m);
         let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
         let balance = CellBalance {
             hot_release_w: self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
@@ -233,6 +258,7 @@ impl Exchanger {
             ua_per_length_w_mk: 1.0 / (r_hot + r_cold),
             r_hot_per_length: r_hot,
             r_cold_per_length: r_cold,
+            bulk_weight: [beta_hot, beta_cold],
         }
     }
 
@@ -266,11 +292,24 @@ impl Exchanger {
         let mc = |s: &Stream, t: f64| s.mass_flow_kg_s * s.fluid.props(t).cp;
         let (mc_hot_in, mc_hot_out) = (mc(&self.hot, t.hot_in), mc(&self.hot, t.hot_out));
         let (mc_cold_in, mc_cold_out) = (mc(&self.cold, t.cold_in), mc(&self.cold, t.cold_out));
-        let jac = [
+        let mut jac = [
             [mc_hot_in, -mc_hot_out, -g_hot, 0.0, 0.0, 0.0, -w_hot],
             [0.0, 0.0, 0.0, -mc_cold_in, mc_cold_out, -g_cold, -w_cold],
             [0.0, 0.0, g_hot, 0.0, 0.0, -g_cold, w_hot - w_cold],
         ];
+        // The bulk column is taken by the scheme as the face mean ½(T_in + T_out); where the
+        // bulk is T_out + β(T_in − T_out) instead, move the difference onto the face columns
+        // (the derivative of β itself is left out: Newton stays convergent, the residual exact).
+        for (s, base) in [(0, 0), (1, 3)] {
+            let shift = d.bulk_weight[s] - 0.5;
+            if shift != 0.0 {
+                for row in jac.iter_mut() {
+                    let g = row[base + 2];
+                    row[base] += g * shift;
+                    row[base + 1] -= g * shift;
+                }
+            }
+        }
         (d, jac)
     }
 

@@ -127,6 +127,9 @@ pub enum SolveError {
         /// (None: the cells are already short, so more of them would not help).
         suggested_cells: Option<usize>,
     },
+    /// Both flows are zero: no steady state is defined.
+    #[error("both flows are zero, so the steady state is not defined (it depends on the history): start a transient with initial = \"uniform\", or keep one flow running")]
+    NoFlow,
     /// The hot inlet is not hotter than the cold inlet (possible through schedules).
     #[error(
         "the hot inlet ({} °C) is not hotter than the cold inlet ({} °C){}: the hot stream must be the hotter one at its inlet; \
@@ -328,11 +331,31 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
         .collect()
 }
 
+/// The steady state with a stream stopped. With no flow a stream carries no enthalpy, so in
+/// every cell its film carries no heat: the wall and the stopped fluid sit at the flowing
+/// stream's temperature, which passes unchanged (its inlet everywhere), and the duty is zero.
+/// Uniform values satisfy every scheme's cell balances exactly. With both stopped the steady
+/// state is not defined (it depends on the history).
+fn stopped_flow_state(ex: &Exchanger, lay: &Grid, dx: f64) -> Result<Option<SteadySolution>, SolveError> {
+    let (hot_stopped, cold_stopped) = (ex.hot.mass_flow_kg_s <= 0.0, ex.cold.mass_flow_kg_s <= 0.0);
+    let t = match (hot_stopped, cold_stopped) {
+        (false, false) => return Ok(None),
+        (true, true) => return Err(SolveError::NoFlow),
+        (true, false) => ex.cold.inlet_c,
+        (false, true) => ex.hot.inlet_c,
+    };
+    let x = vec![Vector3::new(t, t, t); lay.n];
+    Ok(Some(unpack(lay, dx, &x, 0, 0.0)))
+}
+
 /// Solve the steady state of `ex` on `settings.cells` cells.
 pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dyn Observer) -> Result<SteadySolution, SolveError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     let lay = Grid { arrangement: ex.arrangement, n, scheme: ex.scheme, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };
+    if let Some(stopped) = stopped_flow_state(ex, &lay, dx)? {
+        return Ok(stopped);
+    }
     let scale = ex.max_duty_w().abs().max(f64::MIN_POSITIVE);
     // The residual cannot go below the round-off in the enthalpy differences, which grows
     // with a stream's ṁ·|h|: a stream with 10⁶ times the other's capacity would otherwise

@@ -91,6 +91,16 @@ impl Signal {
         }
     }
 
+    /// Value just before time `t` (the left limit): differs from [`Signal::at`] only at the
+    /// instant of a step. The initial state of a run uses the inputs just before t = 0, so a
+    /// step at t = 0 acts at 0⁺ instead of being absorbed into the initial steady state.
+    pub fn before(&self, t: f64) -> f64 {
+        match self {
+            Signal::Step { time_s, before, .. } if t <= *time_s => *before,
+            other => other.at(t),
+        }
+    }
+
     /// Times where the signal or its slope jumps (integration restarts there).
     pub fn breakpoints(&self) -> Vec<f64> {
         match self {
@@ -133,6 +143,16 @@ impl Inputs {
         e.hot.mass_flow_kg_s = self.hot_flow_kg_s.at(t).max(0.0);
         e.cold.inlet_c = self.cold_inlet_c.at(t);
         e.cold.mass_flow_kg_s = self.cold_flow_kg_s.at(t).max(0.0);
+        e
+    }
+
+    /// The exchanger with the inputs just before time `t` (see [`Signal::before`]).
+    pub fn apply_before(&self, ex: &Exchanger, t: f64) -> Exchanger {
+        let mut e = ex.clone();
+        e.hot.inlet_c = self.hot_inlet_c.before(t);
+        e.hot.mass_flow_kg_s = self.hot_flow_kg_s.before(t).max(0.0);
+        e.cold.inlet_c = self.cold_inlet_c.before(t);
+        e.cold.mass_flow_kg_s = self.cold_flow_kg_s.before(t).max(0.0);
         e
     }
 
@@ -420,14 +440,77 @@ pub enum TransientError {
     /// The exchanger lacks data the transient needs.
     #[error("{0}")]
     Missing(String),
+    /// A temperature left the range spanned by the inlets (over their schedules) and the
+    /// initial state: heat would have flowed from cold to hot.
+    #[error(
+        "at t = {} s the {what} reaches {} °C at x = {} m, outside {} … {} °C, the range of the inlet temperatures (over their schedules) and the initial state: the discrete solution breaks the second law. Use more cells or scheme = \"upwind\" (monotone), or a tighter tolerance_K",
+        crate::text::num(*time_s), crate::text::num(*value_c), crate::text::num(*position_m), crate::text::num(*min_c), crate::text::num(*max_c)
+    )]
+    SecondLaw {
+        /// Time, s.
+        time_s: f64,
+        /// "hot stream", "cold stream" or "wall".
+        what: &'static str,
+        /// Where, m.
+        position_m: f64,
+        /// The temperature, °C.
+        value_c: f64,
+        /// Lowest allowed, °C.
+        min_c: f64,
+        /// Highest allowed, °C.
+        max_c: f64,
+    },
+}
+
+impl Signal {
+    /// Lowest and highest value the signal takes.
+    pub fn range(&self) -> (f64, f64) {
+        let values: Vec<f64> = match self {
+            Signal::Constant(v) => vec![*v],
+            Signal::Step { before, after, .. } => vec![*before, *after],
+            Signal::Ramp { from, to, .. } => vec![*from, *to],
+            Signal::Table(p) => p.iter().map(|x| x.1).collect(),
+        };
+        values.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)))
+    }
+}
+
+/// Second-law bounds of a run: every temperature stays within the range of the inlet
+/// temperatures over their schedules and of the initial state, widened by a round-off and
+/// integration allowance of 10 tolerance_K + 10⁻⁹ of the span.
+fn second_law_bounds(inputs: &Inputs, x0: &[Vector3<f64>], atol_k: f64) -> (f64, f64) {
+    let (h_lo, h_hi) = inputs.hot_inlet_c.range();
+    let (c_lo, c_hi) = inputs.cold_inlet_c.range();
+    let (mut lo, mut hi) = (h_lo.min(c_lo), h_hi.max(c_hi));
+    for x in x0 {
+        for v in x.iter() {
+            lo = lo.min(*v);
+            hi = hi.max(*v);
+        }
+    }
+    let margin = 10.0 * atol_k + 1e-9 * (hi - lo).abs().max(1.0);
+    (lo - margin, hi + margin)
+}
+
+/// The first face or wall temperature outside `bounds`, as an error.
+fn check_second_law(snap: &Snapshot, dx: f64, bounds: (f64, f64)) -> Result<(), TransientError> {
+    let (lo, hi) = bounds;
+    let faces = |v: &[f64], what: &'static str| v.iter().enumerate().find(|(_, t)| !(**t >= lo && **t <= hi)).map(|(j, t)| (what, j as f64 * dx, *t));
+    let wall = snap.wall_c.iter().enumerate().find(|(_, t)| !(**t >= lo && **t <= hi)).map(|(i, t)| ("wall", (i as f64 + 0.5) * dx, *t));
+    match faces(&snap.hot_faces_c, "hot stream").or_else(|| faces(&snap.cold_faces_c, "cold stream")).or(wall) {
+        None => Ok(()),
+        Some((what, position_m, value_c)) => {
+            Err(TransientError::SecondLaw { time_s: snap.time_s, what, position_m, value_c, min_c: bounds.0, max_c: bounds.1 })
+        }
+    }
 }
 
 /// Run a transient simulation of `ex` under `inputs`.
 pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, observer: &mut dyn TransientObserver) -> Result<TransientRun, TransientError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
-    // Initial temperatures.
-    let e0 = inputs.apply(ex, 0.0);
+    // Initial temperatures, for the inputs just before t = 0.
+    let e0 = inputs.apply_before(ex, 0.0);
     let x0: Vec<Vector3<f64>> = match settings.initial {
         Initial::Uniform(t) => vec![Vector3::new(t, t, t); n],
         Initial::Steady => {
@@ -459,17 +542,21 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
     }
     // Stop times: outputs and input breakpoints.
     let t_end = settings.duration_s;
+    // Every input change is an output too, so responses are measured from the change itself,
+    // not from the first regular output after it.
     let mut stops: Vec<f64> = (1..).map(|k| k as f64 * settings.output_interval_s).take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0)).collect();
-    let outputs: Vec<f64> = stops.clone();
     stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
     stops.push(t_end);
     stops.sort_by(|a, b| a.total_cmp(b));
     stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
+    let outputs: Vec<f64> = stops.clone();
 
     let mut run = TransientRun { samples: Vec::new(), snapshots: Vec::new(), final_snapshot: model.sample(0.0, &y).1, stats: Stats::default(), cells: n };
+    let bounds = second_law_bounds(inputs, &x0, settings.atol_k);
     let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<(), TransientError> {
         let (sample, snap) = model.sample(t, y);
         model.check(t, &snap)?;
+        check_second_law(&snap, model.dx, bounds)?;
         for &ts in &settings.snapshot_times_s {
             let nearest = (ts / settings.output_interval_s).round() * settings.output_interval_s;
             if (t - nearest.min(t_end)).abs() < 1e-9 * t_end.max(1.0) && !run.snapshots.iter().any(|s| s.time_s == t) {
@@ -771,4 +858,39 @@ fn extrapolate(hist: &[(f64, Vec<Vector3<f64>>)], t: f64) -> Vec<Vector3<f64>> {
     let weights: Vec<f64> = (0..k).map(|j| (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - hist[m].0) / (hist[j].0 - hist[m].0))).collect();
     let n = hist[0].1.len();
     (0..n).map(|i| (0..k).fold(Vector3::zeros(), |acc, j| acc + hist[j].1[i] * weights[j])).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The second-law bound spans the inlets over their schedules and the initial state, and
+    /// a temperature outside it (the 115 °C stagnant cell the face-mean scheme once produced
+    /// with a 95 °C hot inlet) is refused, naming where and when.
+    #[test]
+    fn second_law_check_spans_schedules_and_initial_state() {
+        let inputs = Inputs {
+            hot_inlet_c: Signal::Ramp { start_s: 10.0, end_s: 20.0, from: 95.0, to: 99.0 },
+            hot_flow_kg_s: Signal::Constant(1.0),
+            cold_inlet_c: Signal::Step { time_s: 5.0, before: 8.0, after: 12.0 },
+            cold_flow_kg_s: Signal::Table(vec![(0.0, 1.0), (10.0, 0.0)]),
+        };
+        let x0 = vec![Vector3::new(15.0, 15.0, 15.0); 3];
+        let (lo, hi) = second_law_bounds(&inputs, &x0, 1e-4);
+        assert!((lo - 8.0).abs() < 2e-3 && (hi - 99.0).abs() < 2e-3, "{lo} {hi}");
+        let snap = |cold: f64| Snapshot { time_s: 1100.0, hot_faces_c: vec![95.0; 4], cold_faces_c: vec![20.0, cold, 20.0, 20.0], wall_c: vec![50.0; 3] };
+        assert!(check_second_law(&snap(90.0), 0.5, (lo, hi)).is_ok());
+        let e = check_second_law(&snap(115.0), 0.5, (lo, hi)).unwrap_err();
+        assert!(matches!(e, TransientError::SecondLaw { what: "cold stream", .. }), "{e}");
+        assert!(e.to_string().contains("t = 1100 s") && e.to_string().contains("x = 0.5 m"), "{e}");
+    }
+
+    /// A step at t = 0 is seen just after 0: the initial state uses the value before it.
+    #[test]
+    fn a_step_at_zero_acts_after_the_initial_state() {
+        let step = Signal::Step { time_s: 0.0, before: 95.0, after: 85.0 };
+        assert_eq!(step.before(0.0), 95.0);
+        assert_eq!(step.at(0.0), 85.0);
+        assert_eq!(step.before(1.0), 85.0);
+    }
 }

@@ -1,0 +1,134 @@
+//! Transients at the edges: a flow that stops for a long time, stops at the start or the
+//! end, and a step at t = 0. The references are the second law (no temperature beyond the
+//! range of the inlets and the initial state) and the analytic steady state with a stream
+//! stopped [A]: no duty, the flowing stream unchanged, the stopped fluid and the wall at the
+//! flowing stream's temperature.
+
+use hxgrid::scenario::TransientReport;
+use std::path::Path;
+
+fn startup_text() -> String {
+    std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler-startup.toml")).unwrap()
+}
+
+fn simulate(text: &str) -> Result<TransientReport, String> {
+    let case = hxgrid::case::parse_str(text, "edge", "edge").map_err(|e| e.to_string())?;
+    let ex = case.build();
+    let spec = case.transient.as_ref().unwrap();
+    hxgrid::scenario::run("edge", &ex, &spec.inputs(&ex), &spec.settings_for(&ex), spec.response_from_s, &mut hxgrid::solve::SilentObserver)
+        .map_err(|e| e.to_string())
+}
+
+/// The demo's cooling-water schedule replaced by `times`/`values`, at `cells` cells with `scheme`.
+fn with_schedule(times: &str, values: &str, scheme: &str, cells: usize) -> String {
+    startup_text()
+        .replace("times_s = [900.0, 905.0, 1200.0, 1220.0]", &format!("times_s = {times}"))
+        .replace("values = [0.90, 0.0, 0.0, 0.90]", &format!("values = {values}"))
+        .replace("cells = 200", &format!("cells = {cells}\nscheme = \"{scheme}\""))
+        .replace("response_from_s = 1200.0 ", "response_from_s = 0.0 ")
+}
+
+fn extremes(r: &TransientReport) -> (f64, f64) {
+    let mut all: Vec<f64> = r.snapshots.iter().flat_map(|s| s.hot_faces_c.iter().chain(&s.cold_faces_c).chain(&s.wall_c).copied()).collect();
+    all.extend(r.samples.iter().flat_map(|s| [s.hot_outlet_C, s.cold_outlet_C, s.max_wall_C]));
+    all.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)))
+}
+
+/// Cooling water stopped from 905 s to 1500 s with the hot water (95 °C) still flowing:
+/// every scheme stays within 8 … 95 °C (the inlets; the start is 15 °C), snapshots taken
+/// while the water stands included, and the three schemes agree on the outlet. Regression:
+/// the default trapezoidal scheme drove the stagnant cell next to the cold inlet towards
+/// 2T_w − T_in, about 115 °C.
+#[test]
+fn a_long_stop_stays_within_the_inlets_for_every_scheme() {
+    let mut peaks = Vec::new();
+    for scheme in ["trapezoidal", "upwind", "tvd"] {
+        let text = with_schedule("[900.0, 905.0, 1500.0, 1520.0]", "[0.90, 0.0, 0.0, 0.90]", scheme, 120)
+            .replace("snapshot_times_s = [0.0, 30.0, 120.0, 600.0, 1100.0, 1800.0]", "snapshot_times_s = [0.0, 1000.0, 1200.0, 1450.0, 1800.0]");
+        let r = simulate(&text).unwrap_or_else(|e| panic!("{scheme}: {e}"));
+        let (lo, hi) = extremes(&r);
+        assert!(lo >= 8.0 - 1e-3 && hi <= 95.0 + 1e-3, "{scheme}: {lo} … {hi} °C");
+        assert_eq!(r.snapshots.len(), 5);
+        let peak = r.samples.iter().map(|s| s.cold_outlet_C).fold(f64::NEG_INFINITY, f64::max);
+        peaks.push(peak);
+        assert!(r.energy_closure_relative < 1e-6, "{scheme}: closure {}", r.energy_closure_relative);
+    }
+    // The schemes differ by their own grid error only (under 1 K at 120 cells).
+    for p in &peaks[1..] {
+        assert!((p - peaks[0]).abs() < 1.0, "{peaks:?}");
+    }
+}
+
+/// Flow stopped at the end of the run: the final steady state is defined — the stopped cold
+/// water at the hot inlet temperature — and the run ends near it instead of failing with
+/// NaN. Both flows stopped at the end: no steady state exists, and the report says so (null)
+/// rather than inventing one.
+#[test]
+fn a_stop_that_lasts_to_the_end() {
+    let r = simulate(&with_schedule("[900.0, 905.0]", "[0.90, 0.0]", "trapezoidal", 60)).unwrap();
+    assert_eq!(r.cold_outlet.steady_final_C, Some(95.0));
+    assert_eq!(r.hot_outlet.steady_final_C, Some(95.0));
+    let end = r.samples.last().unwrap();
+    assert!(end.cold_flow_kg_s == 0.0 && end.cold_duty_W == 0.0);
+    assert!(end.hot_outlet_C > 90.0 && end.hot_outlet_C <= 95.0 + 1e-6, "{}", end.hot_outlet_C);
+    // Both stopped.
+    let both = with_schedule("[900.0, 905.0]", "[0.90, 0.0]", "trapezoidal", 60).replace(
+        "[transient.cold_mass_flow_kg_s]",
+        "[transient.hot_mass_flow_kg_s]\nkind = \"step\"\ntime_s = 1000.0\nto = 0.0\n\n[transient.cold_mass_flow_kg_s]",
+    );
+    let r = simulate(&both).unwrap();
+    assert_eq!(r.hot_outlet.steady_final_C, None);
+    assert_eq!(r.cold_outlet.difference_from_steady_K, None);
+    let (lo, hi) = extremes(&r);
+    assert!(lo >= 8.0 - 1e-3 && hi <= 95.0 + 1e-3, "{lo} … {hi}");
+}
+
+/// A flow that is zero at t = 0 with a steady start: the initial state is the stopped-flow
+/// steady state (no duty; the stopped cold water and the wall at the hot water's 95 °C), then
+/// the pump starts.
+#[test]
+fn a_flow_that_is_zero_at_the_start() {
+    let text = with_schedule("[0.0, 300.0, 320.0]", "[0.0, 0.0, 0.90]", "trapezoidal", 60)
+        .replace("initial = \"uniform\"", "initial = \"steady\"")
+        .replace("initial_temperature_C = 15.0", "");
+    let r = simulate(&text).unwrap();
+    let first = &r.samples[0];
+    assert!((first.hot_outlet_C - 95.0).abs() < 1e-9 && first.hot_duty_W.abs() < 1e-6, "{first:?}");
+    // Counterflow: the cold inlet face is the last one (x = L, 8 °C).
+    let cold = &r.snapshots[0].cold_faces_c;
+    assert!(cold[..cold.len() - 1].iter().all(|t| (t - 95.0).abs() < 1e-9), "{cold:?}");
+    assert!(r.snapshots[0].wall_c.iter().all(|t| (t - 95.0).abs() < 1e-9));
+    // After the restart it settles on the flowing steady state.
+    assert!(r.cold_outlet.difference_from_steady_K.unwrap().abs() < 0.05, "{:?}", r.cold_outlet);
+    // Both stopped at a steady start: no initial state exists; the message says what to do.
+    let both = text.replace(
+        "[transient.cold_mass_flow_kg_s]",
+        "[transient.hot_mass_flow_kg_s]\nkind = \"table\"\ntimes_s = [0.0, 100.0]\nvalues = [0.0, 0.2]\n\n[transient.cold_mass_flow_kg_s]",
+    );
+    let e = simulate(&both).unwrap_err();
+    assert!(e.contains("both flows are zero") && e.contains("initial = \"uniform\""), "{e}");
+}
+
+/// A step at t = 0 with a steady start acts at 0⁺: the initial state is the steady state for
+/// the value before the step, the response is measured from t = 0 itself, and the run ends at
+/// the steady state for the value after. Regression: the step was absorbed into the initial
+/// steady state and nothing happened.
+#[test]
+fn a_step_at_zero_is_not_swallowed() {
+    let base = startup_text().replace("initial = \"uniform\"", "initial = \"steady\"").replace("initial_temperature_C = 15.0", "");
+    let no_schedule =
+        base.replace("[transient.cold_mass_flow_kg_s]\nkind = \"table\"\ntimes_s = [900.0, 905.0, 1200.0, 1220.0]\nvalues = [0.90, 0.0, 0.0, 0.90]", "");
+    assert!(!no_schedule.contains("times_s = [900.0"), "schedule removed");
+    let text = no_schedule.replace("response_from_s = 1200.0 ", "").replace("cells = 200", "cells = 60")
+        + "\n[transient.hot_inlet_temperature_C]\nkind = \"step\"\ntime_s = 0.0\nto = 80.0\n";
+    let r = simulate(&text).unwrap();
+    let case = hxgrid::case::parse_str(&text, "s", "s").unwrap();
+    let before =
+        hxgrid::solve::solve_steady(&case.build(), &hxgrid::solve::SteadySettings { cells: 60, ..Default::default() }, &mut hxgrid::solve::SilentObserver)
+            .unwrap();
+    assert!((r.samples[0].hot_outlet_C - before.hot_outlet_c()).abs() < 1e-6, "{} vs {}", r.samples[0].hot_outlet_C, before.hot_outlet_c());
+    assert_eq!(r.reference_time_s, 0.0);
+    assert!(r.hot_outlet.change_K < -1.0, "{:?}", r.hot_outlet);
+    assert!(r.cold_outlet.change_K < -1.0, "{:?}", r.cold_outlet);
+    assert!(r.hot_outlet.difference_from_steady_K.unwrap().abs() < 0.01, "{:?}", r.hot_outlet);
+}
