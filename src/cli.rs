@@ -20,7 +20,8 @@ use std::path::PathBuf;
         "  hxgrid props co2-10MPa --from 30 --to 60      print a fluid's properties\n",
         "  hxgrid props --table my-oil.csv               check and print your own table\n\n",
         "Exit codes: 0 success · 2 command-line usage error · 3 invalid case file or input · ",
-        "4 solver failure (no results written) · 5 results could not be written"
+        "4 solver failure (no results written) · 5 results could not be written or the folder is not hxgrid's · ",
+        "6 a transient stopped early on a physical limit (results up to then written)"
     )
 )]
 pub struct Cli {

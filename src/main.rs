@@ -37,6 +37,8 @@ macro_rules! errln {
 const EXIT_INPUT: u8 = 3;
 const EXIT_SOLVER: u8 = 4;
 const EXIT_OUTPUT: u8 = 5;
+/// A transient stopped early on a physical limit; its results up to then were written.
+const EXIT_STOPPED: u8 = 6;
 
 fn main() -> ExitCode {
     let args = Cli::parse();
@@ -292,12 +294,27 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         Ok(r) => r,
         Err(e) => return solver_failed(&e),
     };
-    finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report))
+    let code = finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report));
+    match (&report.stop, code == ExitCode::SUCCESS) {
+        (Some(stop), true) => {
+            errln!(
+                "stopped early: {}
+The results up to t = {} s were written (status \"stopped\" in transient.json).",
+                stop.reason,
+                num(stop.time_s)
+            );
+            ExitCode::from(EXIT_STOPPED)
+        }
+        _ => code,
+    }
 }
 
 fn print_transient(r: &hxgrid::scenario::TransientReport) {
     outln!("\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
     outln!("  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
+    if let Some(stop) = &r.stop {
+        outln!("  STOPPED EARLY at t = {} s ({} stream at x = {} m): results end there", num(stop.time_s), stop.stream, num(stop.position_m));
+    }
     let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
     outln!("\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
     for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {

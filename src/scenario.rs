@@ -39,6 +39,10 @@ pub struct OutletResponse {
 pub struct TransientReport {
     /// Case name.
     pub case: String,
+    /// "completed", or "stopped" when a physical limit ended the run early (see `stop`).
+    pub status: &'static str,
+    /// Where, when and why the run stopped early; the results end there.
+    pub stop: Option<crate::solve::transient::Stop>,
     /// Spatial scheme.
     pub scheme: &'static str,
     /// Integrator.
@@ -124,10 +128,15 @@ pub fn run(
 ) -> Result<TransientReport, TransientError> {
     let run = simulate(ex, inputs, settings, observer)?;
     let end = settings.duration_s;
-    let steady = match solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver) {
-        Ok(s) => Some(s),
-        Err(crate::solve::SolveError::NoFlow) => None,
-        Err(e) => return Err(e.into()),
+    // The steady state for the final inputs, beside the end of a completed run (none after
+    // an early stop: the run did not reach the end).
+    let steady = match &run.stopped {
+        Some(_) => None,
+        None => match solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver) {
+            Ok(s) => Some(s),
+            Err(crate::solve::SolveError::NoFlow) => None,
+            Err(e) => return Err(e.into()),
+        },
     };
     let times: Vec<f64> = run.samples.iter().map(|s| s.time_s).collect();
     let reference = [&inputs.hot_inlet_c, &inputs.hot_flow_kg_s, &inputs.cold_inlet_c, &inputs.cold_flow_kg_s]
@@ -160,6 +169,8 @@ pub fn run(
     let max_rate = run.samples.iter().map(|s| s.max_wall_rate_K_s).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
     Ok(TransientReport {
         case: case_name.to_string(),
+        status: if run.stopped.is_some() { "stopped" } else { "completed" },
+        stop: run.stopped.clone(),
         scheme: ex.scheme.as_str(),
         integrator: match settings.integrator {
             Integrator::Explicit => "explicit (Dormand–Prince 5(4))",

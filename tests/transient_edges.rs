@@ -132,3 +132,41 @@ fn a_step_at_zero_is_not_swallowed() {
     assert!(r.cold_outlet.change_K < -1.0, "{:?}", r.cold_outlet);
     assert!(r.hot_outlet.difference_from_steady_K.unwrap().abs() < 0.01, "{:?}", r.hot_outlet);
 }
+
+/// A lost-flow run that reaches saturation stops there and writes what it has: cooling water
+/// at 1.5 bar (saturation 111.35 °C, IAPWS-IF97) left standing against 125 °C hot water
+/// boils. The run reports status "stopped" with the time, place and reason, its results end
+/// at the last output inside the limits, and the command exits 6. Regression: nothing was
+/// written, and the message read "outside water (…) (at t = …)'s valid range".
+#[test]
+fn a_run_that_reaches_saturation_stops_and_keeps_its_results() {
+    let mut text = with_schedule("[900.0, 905.0, 1500.0, 1520.0]", "[0.90, 0.0, 0.0, 0.90]", "trapezoidal", 80).replacen(
+        "inlet_temperature_C = 95.0",
+        "inlet_temperature_C = 125.0",
+        1,
+    );
+    let cold = text.find("[cold]").unwrap();
+    let tail = text[cold..].replacen("pressure_bar_abs = 3.0", "pressure_bar_abs = 1.5", 1);
+    text.replace_range(cold.., &tail);
+    let r = simulate(&text).unwrap();
+    assert_eq!(r.status, "stopped");
+    let stop = r.stop.as_ref().unwrap();
+    assert_eq!(stop.stream, "cold");
+    assert!(stop.time_s > 905.0 && stop.time_s < 1500.0, "{}", stop.time_s);
+    assert!(stop.temperature_C > 111.0 && stop.reason.contains("outside the valid range") && stop.reason.contains("saturates at 111.35 °C"), "{stop:?}");
+    let last = r.samples.last().unwrap();
+    assert!(last.time_s < stop.time_s && last.time_s > stop.time_s - 2.0, "{}", last.time_s);
+    assert_eq!(r.hot_outlet.steady_final_C, None);
+    // From the command line: results written, exit 6.
+    let dir = std::env::temp_dir().join(format!("hxgrid-stop-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::write(dir.join("boil.toml"), &text).unwrap();
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_hxgrid")).args(["simulate", "boil.toml", "--out", "res", "-q"]).current_dir(&dir).output().unwrap();
+    assert_eq!(o.status.code(), Some(6), "{}", String::from_utf8_lossy(&o.stderr));
+    let json: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(dir.join("res/transient.json")).unwrap()).unwrap();
+    assert_eq!(json["status"], "stopped");
+    assert!(json["stop"]["time_s"].is_number());
+    assert!(std::fs::read_to_string(dir.join("res/timeseries.csv")).unwrap().lines().count() > 900);
+    let _ = std::fs::remove_dir_all(&dir);
+}

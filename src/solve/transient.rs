@@ -298,6 +298,26 @@ pub struct TransientRun {
     pub stats: Stats,
     /// Cells.
     pub cells: usize,
+    /// Set when the run ended early on a physical limit (a stream reaching saturation or
+    /// leaving its fluid's data); the samples then end at that time.
+    pub stopped: Option<Stop>,
+}
+
+/// Why and where a run ended early.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[allow(non_snake_case)]
+pub struct Stop {
+    /// First output time at which the limit was found, s (the limit was crossed after the
+    /// output before it).
+    pub time_s: f64,
+    /// "hot" or "cold".
+    pub stream: &'static str,
+    /// Where, m.
+    pub position_m: f64,
+    /// The temperature reached there, °C.
+    pub temperature_C: f64,
+    /// What the limit is, as a sentence.
+    pub reason: String,
 }
 
 /// Hears about progress (the binary draws a progress bar).
@@ -551,11 +571,26 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
     stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
     let outputs: Vec<f64> = stops.clone();
 
-    let mut run = TransientRun { samples: Vec::new(), snapshots: Vec::new(), final_snapshot: model.sample(0.0, &y).1, stats: Stats::default(), cells: n };
+    let mut run =
+        TransientRun { samples: Vec::new(), snapshots: Vec::new(), final_snapshot: model.sample(0.0, &y).1, stats: Stats::default(), cells: n, stopped: None };
     let bounds = second_law_bounds(inputs, &x0, settings.atol_k);
-    let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<(), TransientError> {
+    // Ok(false): a physical limit was reached at this output; the run ends here, with its
+    // results up to the output before.
+    let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<bool, TransientError> {
         let (sample, snap) = model.sample(t, y);
-        model.check(t, &snap)?;
+        if let Err(e) = model.check(t, &snap) {
+            return match e {
+                SolveError::LeftRange { stream, position_m, temperature_c, .. } => {
+                    run.stopped = Some(Stop { time_s: t, stream, position_m, temperature_C: temperature_c, reason: e.to_string() });
+                    // The last state inside the limits, as a profile snapshot.
+                    if run.snapshots.last().map(|s| s.time_s) != Some(run.final_snapshot.time_s) {
+                        run.snapshots.push(run.final_snapshot.clone());
+                    }
+                    Ok(false)
+                }
+                other => Err(other.into()),
+            };
+        }
         check_second_law(&snap, model.dx, bounds)?;
         for &ts in &settings.snapshot_times_s {
             let nearest = (ts / settings.output_interval_s).round() * settings.output_interval_s;
@@ -565,9 +600,11 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
         }
         run.samples.push(sample);
         run.final_snapshot = snap;
-        Ok(())
+        Ok(true)
     };
-    record(&mut run, 0.0, &y, &model)?;
+    if !record(&mut run, 0.0, &y, &model)? {
+        return Ok(run);
+    }
     // Outputs are sorted: look up the nearest by bisection (a linear scan made long runs O(n²)).
     let is_output = |t: f64| {
         let k = outputs.partition_point(|&o| o < t);
@@ -584,7 +621,9 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
                 y = y1;
                 t = stop;
                 if is_output(t) {
-                    record(&mut run, t, &y, &model)?;
+                    if !record(&mut run, t, &y, &model)? {
+                        break;
+                    }
                     observer.progress(t, t_end);
                 }
                 if run.stats.steps > settings.max_steps {
@@ -597,7 +636,9 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
             for &stop in &stops {
                 bdf.advance_to(&model, stop, settings, &mut run.stats)?;
                 if is_output(stop) {
-                    record(&mut run, stop, &bdf.y, &model)?;
+                    if !record(&mut run, stop, &bdf.y, &model)? {
+                        break;
+                    }
                     observer.progress(stop, t_end);
                 }
             }
