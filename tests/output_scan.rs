@@ -23,8 +23,20 @@ fn scan_csv(path: &Path) {
 }
 
 /// Keys whose value may be null ("not computed" or "does not apply"), by name.
-const MAY_BE_NULL: [&str; 9] =
-    ["hot_pressure_drop_Pa", "cold_pressure_drop_Pa", "lmtd_K", "lmtd_k", "lmtd_duty_W", "grid_study", "settling_63_s", "settling_95_s", "settling_99_s"];
+const MAY_BE_NULL: [&str; 12] = [
+    "stop",
+    "steady_final_C",
+    "difference_from_steady_K",
+    "hot_pressure_drop_Pa",
+    "cold_pressure_drop_Pa",
+    "lmtd_K",
+    "lmtd_k",
+    "lmtd_duty_W",
+    "grid_study",
+    "settling_63_s",
+    "settling_95_s",
+    "settling_99_s",
+];
 
 fn scan_json(v: &serde_json::Value, path: &str, file: &Path) {
     match v {
