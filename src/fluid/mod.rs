@@ -68,6 +68,12 @@ pub trait Fluid: Send + Sync + Debug {
     /// continues linearly with the end-point cp, so that it stays monotone.
     fn enthalpy(&self, t_c: f64) -> f64;
 
+    /// For a liquid that can flash: its saturation (vapour) pressure at `t_c`, Pa, so that a
+    /// local pressure below it can be refused. None for fluids without that check.
+    fn saturation_pressure_pa(&self, _t_c: f64) -> Option<f64> {
+        None
+    }
+
     /// Density at temperature `t_c` and pressure `p_pa`, kg/m³. The default ignores the
     /// pressure (liquids, tables at one pressure); ideal gases override it.
     fn density_at(&self, t_c: f64, _p_pa: f64) -> f64 {

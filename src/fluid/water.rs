@@ -115,4 +115,7 @@ impl Fluid for Water {
     fn enthalpy(&self, t_c: f64) -> f64 {
         self.table.enthalpy(t_c)
     }
+    fn saturation_pressure_pa(&self, t_c: f64) -> Option<f64> {
+        (self.phase == WaterPhase::Liquid).then(|| saturation_pressure_pa(t_c.clamp(0.01, 373.9)))
+    }
 }

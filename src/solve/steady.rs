@@ -127,6 +127,40 @@ pub enum SolveError {
         /// (None: the cells are already short, so more of them would not help).
         suggested_cells: Option<usize>,
     },
+    /// The local absolute pressure falls to zero or below: the pressure drop exceeds what the
+    /// inlet pressure allows.
+    #[error(
+        "the {stream} stream's absolute pressure falls to {} bar at x = {} m (inlet {} bar, drop {} bar so far): the pressure drop is larger than the inlet pressure allows. Raise {stream}.pressure_bar_abs, or reduce the flow or the length, or enlarge the passage",
+        crate::text::num(*pressure_pa * 1e-5), crate::text::num(*position_m), crate::text::num(*inlet_pa * 1e-5), crate::text::num((*inlet_pa - *pressure_pa) * 1e-5)
+    )]
+    NegativePressure {
+        /// "hot" or "cold".
+        stream: &'static str,
+        /// Where, m.
+        position_m: f64,
+        /// Local absolute pressure, Pa.
+        pressure_pa: f64,
+        /// Inlet pressure, Pa.
+        inlet_pa: f64,
+    },
+    /// A liquid's local pressure falls below its saturation pressure at the local
+    /// temperature: it would flash to vapour.
+    #[error(
+        "the {stream} stream flashes: at x = {} m its pressure {} bar is below the saturation pressure {} bar of the liquid at {} °C; hxgrid models one phase and does not compute boiling. Raise {stream}.pressure_bar_abs, or reduce the pressure drop",
+        crate::text::num(*position_m), crate::text::num(*pressure_pa * 1e-5), crate::text::num(*saturation_pa * 1e-5), crate::text::num(*temperature_c)
+    )]
+    Flashing {
+        /// "hot" or "cold".
+        stream: &'static str,
+        /// Where, m.
+        position_m: f64,
+        /// Local absolute pressure, Pa.
+        pressure_pa: f64,
+        /// Saturation pressure at the local temperature, Pa.
+        saturation_pa: f64,
+        /// Local temperature, °C.
+        temperature_c: f64,
+    },
     /// Both flows are zero: no steady state is defined.
     #[error("both flows are zero, so the steady state is not defined (it depends on the history): start a transient with initial = \"uniform\", or keep one flow running")]
     NoFlow,
