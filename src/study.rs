@@ -102,7 +102,7 @@ fn check_local_pressure(ex: &Exchanger, r: &SteadyReport) -> Result<(), SolveErr
     for (stream, s, faces_pa, faces_c) in [("hot", &ex.hot, &r.hot_faces_pa, &r.hot_faces_c), ("cold", &ex.cold, &r.cold_faces_pa, &r.cold_faces_c)] {
         for (j, (&p, &t)) in faces_pa.iter().zip(faces_c.iter()).enumerate() {
             let position_m = j as f64 * r.length_m / r.cells as f64;
-            if !(p > 0.0) {
+            if p.is_nan() || p <= 0.0 {
                 return Err(SolveError::NegativePressure { stream, position_m, pressure_pa: p, inlet_pa: s.inlet_pressure_pa });
             }
             if let Some(p_sat) = s.fluid.saturation_pressure_pa(t) {

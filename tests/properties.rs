@@ -110,6 +110,12 @@ proptest! {
                 prop_assert!(!matches!(again, Err(hxgrid::solve::SolveError::GridTooCoarse { .. })), "{n} cells still too coarse");
                 return Ok(());
             }
+            // Random flows through random passages can take more pressure than the inlet has:
+            // refused with the stream and place named, never returned.
+            Err(e @ (hxgrid::solve::SolveError::NegativePressure { .. } | hxgrid::solve::SolveError::Flashing { .. })) => {
+                prop_assert!(e.to_string().contains("pressure_bar_abs"));
+                return Ok(());
+            }
             Err(e) => return Err(TestCaseError::fail(format!("{e}\n{text}"))),
         };
         let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
