@@ -8,7 +8,7 @@ use approx::assert_relative_eq;
 use hxgrid::fluid::{ConstantFluid, Fluid, Props};
 use hxgrid::transfer::film::*;
 use hxgrid::transfer::friction::*;
-use hxgrid::transfer::{Channel, LaminarConstants, Layout, Transition, TubeBank};
+use hxgrid::transfer::{Channel, CompactSurface, LaminarConstants, Layout, Transition, TubeBank, Zukauskas};
 use std::path::Path;
 
 const WATER_LIKE: Props = Props { density: 1000.0, cp: 4180.0, viscosity: 1e-3, conductivity: 0.6 };
@@ -208,4 +208,49 @@ fn grid_error_uses_the_schemes_order() {
     assert_relative_eq!(g.estimated_error.duty_w, true_error, max_relative = 0.1);
     let e = hxgrid::case::parse_str(&text.replace("cells = 400", "cells = 1"), "one", "one").unwrap_err().to_string();
     assert!(e.contains("solver.cells") && e.contains("from 2"), "{e}");
+}
+
+fn film_of(f: &dyn FilmCorrelation, channel: &Channel, mass_flow: f64) -> FilmResult {
+    let fluid = ConstantFluid::new(WATER_LIKE);
+    f.film(&FilmInput { channel, mass_flow_kg_s: mass_flow, props: &WATER_LIKE, bulk_c: 20.0, wall_c: 40.0, fluid: &fluid as &dyn Fluid, heated: true })
+}
+
+/// What each film model does when the flow stops (README, "At zero flow"):
+/// - tube banks: Nu³ = Nu_Z³ + 0.36³, the stagnant floor 0.36 being the Ra → 0 limit of
+///   Churchill & Chu's cylinder correlation (Incropera Eq. 9.34), negligible at working flows
+///   (Zukauskas check value 101.85 at Re_max = 15 733 kept, METHODS.md §3);
+/// - compact surfaces: below the data j ∝ 1/Re (the laminar asymptote, constant Nu), so h
+///   stays at its lowest-tested value, counted outside the data;
+/// - internal flow: the channel's fully developed laminar Nu;
+/// - fixed: the given h (warned about in lost-flow schedules).
+/// Regression: tube banks and compact surfaces fell to h ≈ 0.
+#[test]
+fn film_coefficients_at_zero_flow() {
+    let bank =
+        TubeBank { outer_diameter_m: 0.025, transverse_pitch_m: 0.05, longitudinal_pitch_m: 0.05, layout: Layout::Staggered, rows: 20, frontal_area_m2: 1.0 };
+    let z = Zukauskas { bank: bank.clone() };
+    let ch = Channel::duct(1.0, 0.025, 1.0, LaminarConstants::TUBE, 1.0);
+    assert_relative_eq!(film_of(&z, &ch, 0.0).h, 0.36 * WATER_LIKE.conductivity / 0.025, max_relative = 1e-12);
+    let nu_z = bank.nusselt(15733.0, WATER_LIKE.prandtl(), WATER_LIKE.prandtl());
+    let m = 15733.0 * WATER_LIKE.viscosity / 0.025 / bank.velocity_ratio();
+    assert_relative_eq!(film_of(&z, &ch, m).nusselt.unwrap(), nu_z, max_relative = 1e-6);
+
+    let surface = CompactSurface { data: vec![(500.0, 0.010, 0.030), (5000.0, 0.004, 0.012)], fin: None, fin_area_fraction: 0.0 };
+    let passage = Channel::duct(0.01, 0.003, 1.0, LaminarConstants::TUBE, 0.5);
+    let flow_at = |re: f64| re * 0.01 * WATER_LIKE.viscosity / 0.003;
+    let at_data = film_of(&surface, &passage, flow_at(500.0));
+    let stopped = film_of(&surface, &passage, 0.0);
+    assert!(stopped.h.is_finite() && stopped.h > 0.0);
+    assert_relative_eq!(stopped.h, at_data.h, max_relative = 1e-9);
+    assert_relative_eq!(film_of(&surface, &passage, flow_at(50.0)).h, at_data.h, max_relative = 1e-9);
+    assert!(!stopped.in_range && at_data.in_range);
+
+    let internal = model(Laminar::FullyDevelopedT, Turbulent::Gnielinski, Transition::Blend);
+    assert_relative_eq!(film(&internal, &duct(LaminarConstants::TUBE), 0.0).h, 3.66 * WATER_LIKE.conductivity / 0.01, max_relative = 1e-12);
+
+    // A fixed film in a lost-flow schedule is kept, and the user is told.
+    let text = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler-startup.toml")).unwrap();
+    let fixed = text.replacen("film = \"gnielinski\"", "film = \"fixed\"\nfilm_coefficient_W_m2K = 3000.0", 2);
+    let case = hxgrid::case::parse_str(&fixed, "f", "f").unwrap();
+    assert!(case.warnings.iter().any(|w| w.contains("cold stream") && w.contains("keeps the full film coefficient at zero flow")), "{:?}", case.warnings);
 }

@@ -707,6 +707,13 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
     let hot_flow_kg_s = sig("hot_mass_flow_kg_s", &t.hot_mass_flow_kg_s, f.hot.mass_flow_kg_s, true);
     let cold_inlet_c = sig("cold_inlet_temperature_C", &t.cold_inlet_temperature_C, f.cold.inlet_temperature_C, false);
     let cold_flow_kg_s = sig("cold_mass_flow_kg_s", &t.cold_mass_flow_kg_s, f.cold.mass_flow_kg_s, true);
+    for (side, flow, film) in [("hot", &hot_flow_kg_s, f.hot.film), ("cold", &cold_flow_kg_s, f.cold.film)] {
+        if film == FilmName::Fixed && flow.as_ref().is_some_and(|s| s.range().0 <= 0.0) {
+            c.warnings.push(format!(
+                "{side} stream: its flow stops in the schedule, but film = \"fixed\" keeps the full film coefficient at zero flow; for a lost-flow study give a film model that follows the flow (see the README, \"At zero flow\")"
+            ));
+        }
+    }
     TransientSpec {
         settings: TransientSettings {
             cells,

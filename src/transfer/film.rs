@@ -531,6 +531,10 @@ impl TubeBank {
     }
 }
 
+/// Conduction floor of a cylinder's Nusselt number with the surrounding fluid at rest (see
+/// [`Zukauskas`]).
+pub const STAGNANT_CYLINDER_NU: f64 = 0.36;
+
 /// Zukauskas (1972) for the outside of a tube bank in crossflow, with the Pr_s at the local
 /// wall temperature. Valid 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500.
 #[derive(Debug, Clone)]
@@ -548,7 +552,12 @@ impl FilmCorrelation for Zukauskas {
         let re_max = i.mass_flow_kg_s.abs() / self.bank.frontal_area_m2 * self.bank.velocity_ratio() * d / i.props.viscosity;
         let pr = i.props.prandtl();
         let pr_wall = i.fluid.props(i.wall_c).prandtl();
-        let nu = self.bank.nusselt(re_max, pr, pr_wall);
+        // Stagnant floor: Nu³ = Nu_Z³ + Nu₀³ with Nu₀ = 0.36, the Ra → 0 limit of Churchill &
+        // Chu's horizontal-cylinder correlation (Int. J. Heat Mass Transfer 18 (1975) 1049;
+        // Incropera Eq. 9.34), combined as in Churchill–Usagi mixed convection (Incropera
+        // Eq. 9.64 [M]). At zero flow h = 0.36 k/D instead of 0; at working Re_max it changes
+        // Nu by less than 10⁻⁶.
+        let nu = (self.bank.nusselt(re_max, pr, pr_wall).powi(3) + STAGNANT_CYLINDER_NU.powi(3)).cbrt();
         let ok = self.bank.in_range(re_max, pr);
         FilmResult::bare(nu * i.props.conductivity / d, Some(re_max), Some(nu), ok)
     }
@@ -586,12 +595,17 @@ pub struct CompactSurface {
 }
 
 impl CompactSurface {
-    /// (j, Fanning f, in range) at `re`.
+    /// (j, Fanning f, in range) at `re`. Below the lowest tested Re both continue along the
+    /// fully developed laminar asymptote, j ∝ f ∝ 1/Re (constant Nu and f·Re), so h and the
+    /// friction per unit of G stay at their lowest-tested values as the flow stops, rather
+    /// than h falling to zero; above the highest the end values are kept. Either way the cell
+    /// is counted outside the data's range.
     pub fn j_f(&self, re: f64) -> (f64, f64, bool) {
         let d = &self.data;
         let n = d.len();
         if re <= d[0].0 {
-            return (d[0].1, d[0].2, re >= d[0].0 * (1.0 - 1e-12));
+            let k = d[0].0 / re.max(1e-300);
+            return (d[0].1 * k, d[0].2 * k, re >= d[0].0 * (1.0 - 1e-12));
         }
         if re >= d[n - 1].0 {
             return (d[n - 1].1, d[n - 1].2, re <= d[n - 1].0 * (1.0 + 1e-12));
@@ -612,7 +626,11 @@ impl FilmCorrelation for CompactSurface {
         let g = i.mass_flow_kg_s.abs() / ch.flow_area_m2.unwrap_or(1.0);
         let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
         let (j, _, ok) = self.j_f(re);
-        let h = j * g * i.props.cp * i.props.prandtl().powf(-2.0 / 3.0);
+        let colburn = i.props.cp * i.props.prandtl().powf(-2.0 / 3.0);
+        // h = j G cp Pr^(−2/3); below the data j·G is constant (= j₀ Re₀ μ/D_h), which also
+        // holds at zero flow where j → ∞ and G = 0.
+        let (re0, j0) = (self.data[0].0, self.data[0].1);
+        let h = if re < re0 { j0 * re0 * i.props.viscosity / ch.hydraulic_diameter_m.unwrap_or(1.0) * colburn } else { j * g * colburn };
         let eta_f = self.fin.map(|f| f.efficiency(h)).unwrap_or(1.0);
         let nu = h * ch.hydraulic_diameter_m.unwrap_or(1.0) / i.props.conductivity;
         FilmResult { h, reynolds: Some(re), nusselt: Some(nu), surface_efficiency: surface_efficiency(self.fin_area_fraction, eta_f), in_range: ok }
@@ -621,6 +639,6 @@ impl FilmCorrelation for CompactSurface {
         format!("the surface's test data, {} ≤ Re ≤ {}", self.data[0].0, self.data[self.data.len() - 1].0)
     }
     fn darcy_friction(&self, _: &Channel, reynolds: f64) -> Option<f64> {
-        Some(4.0 * self.j_f(reynolds).1) // Fanning → Darcy
+        Some(4.0 * self.j_f(reynolds.max(1e-9)).1) // Fanning → Darcy
     }
 }
