@@ -223,6 +223,7 @@ fn film_of(f: &dyn FilmCorrelation, channel: &Channel, mass_flow: f64) -> FilmRe
 ///   stays at its lowest-tested value, counted outside the data;
 /// - internal flow: the channel's fully developed laminar Nu;
 /// - fixed: the given h (warned about in lost-flow schedules).
+///
 /// Regression: tube banks and compact surfaces fell to h ≈ 0.
 #[test]
 fn film_coefficients_at_zero_flow() {
