@@ -275,7 +275,7 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         return code;
     }
     let exchanger = case.build();
-    let settings = spec.settings_for(&exchanger);
+    let settings = spec.settings_for(&exchanger, &case);
     let inputs = spec.inputs(&exchanger);
     let bar = (!quiet && std::io::stderr().is_terminal()).then(|| {
         let b = indicatif::ProgressBar::new(1000);
@@ -291,7 +291,7 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         b.finish_and_clear();
     }
     let report = match result {
-        Ok(r) => r,
+        Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r },
         Err(e) => return solver_failed(&e),
     };
     let code = finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report));

@@ -45,6 +45,8 @@ pub struct TransientReport {
     pub stop: Option<crate::solve::transient::Stop>,
     /// Spatial scheme.
     pub scheme: &'static str,
+    /// Metal heat capacities in the model (set by the caller that knows the case).
+    pub storage: Option<crate::case::Storage>,
     /// Integrator.
     pub integrator: &'static str,
     /// Cells.
@@ -171,6 +173,7 @@ pub fn run(
         case: case_name.to_string(),
         status: if run.stopped.is_some() { "stopped" } else { "completed" },
         stop: run.stopped.clone(),
+        storage: None,
         scheme: ex.scheme.as_str(),
         integrator: match settings.integrator {
             Integrator::Explicit => "explicit (Dormand–Prince 5(4))",

@@ -23,8 +23,10 @@ fn scan_csv(path: &Path) {
 }
 
 /// Keys whose value may be null ("not computed" or "does not apply"), by name.
-const MAY_BE_NULL: [&str; 12] = [
+const MAY_BE_NULL: [&str; 14] = [
     "stop",
+    "shell_with",
+    "shell_outer_face",
     "steady_final_C",
     "difference_from_steady_K",
     "hot_pressure_drop_Pa",

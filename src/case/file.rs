@@ -75,6 +75,15 @@ pub struct TransientFile {
     pub initial_temperature_C: Option<f64>,
     pub wall_density_kg_m3: f64,
     pub wall_specific_heat_J_kgK: f64,
+    /// Double pipe: wall thickness of the outer pipe (shell), m; its heat capacity is stored
+    /// with the annulus fluid (default: none).
+    pub shell_thickness_m: Option<f64>,
+    /// Shell material (default: the wall's).
+    pub shell_density_kg_m3: Option<f64>,
+    pub shell_specific_heat_J_kgK: Option<f64>,
+    /// Fin material for compact surfaces with fins (default: the wall's).
+    pub fin_density_kg_m3: Option<f64>,
+    pub fin_specific_heat_J_kgK: Option<f64>,
     pub snapshot_times_s: Option<Vec<f64>>,
     /// Settling times and overshoot describe the response from this time on (default: 0
     /// for a uniform start, else the first change of an input).

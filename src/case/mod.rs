@@ -7,7 +7,7 @@ mod schema;
 mod validate;
 
 pub use file::*;
-pub use validate::{load, parse_in, parse_str, Case, CaseError, FilmSpec, Geometry, Problem, StreamSpec, TransientSpec};
+pub use validate::{load, parse_in, parse_str, Case, CaseError, FilmSpec, Geometry, Problem, Storage, StreamSpec, TransientSpec};
 
 /// A commented starter case (an invented scenario) written by `hxgrid new`.
 pub const STARTER: &str = include_str!("starter.toml");

@@ -202,6 +202,29 @@ pub struct Case {
     pub warnings: Vec<String>,
 }
 
+/// Metal heat capacities of a transient, per metre of exchanger length (reported in
+/// transient.json).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[allow(non_snake_case)]
+pub struct Storage {
+    /// Separating wall, J/(m·K).
+    pub wall_J_mK: f64,
+    /// Fin metal of finned surfaces, at the wall's temperature, J/(m·K).
+    pub fins_J_mK: f64,
+    /// Outer pipe (shell) of a double pipe, J/(m·K).
+    pub shell_J_mK: f64,
+    /// The stream whose temperature the shell follows ("hot"/"cold"), if there is a shell.
+    pub shell_with: Option<&'static str>,
+    /// The shell's outer face: adiabatic (no heat loss to ambient is modelled).
+    pub shell_outer_face: Option<&'static str>,
+}
+
+impl Storage {
+    fn shell(&self) -> Option<(usize, f64)> {
+        self.shell_with.map(|s| (usize::from(s == "cold"), self.shell_J_mK))
+    }
+}
+
 /// A validated transient scenario.
 #[derive(Debug, Clone)]
 pub struct TransientSpec {
@@ -210,6 +233,10 @@ pub struct TransientSpec {
     pub settings: TransientSettings,
     /// Wall density × specific heat, J/(m³·K).
     pub wall_volumetric_heat_capacity: f64,
+    /// Fin metal density × specific heat, J/(m³·K) (used where a surface has fins).
+    pub fin_volumetric_heat_capacity: f64,
+    /// Shell (outer pipe) wall thickness, m, and density × specific heat, J/(m³·K).
+    pub shell: Option<(f64, f64)>,
     /// Response metrics start here, s (None: automatic).
     pub response_from_s: Option<f64>,
     /// Schedules; None = the stream's constant case value.
@@ -223,9 +250,42 @@ pub struct TransientSpec {
 }
 
 impl TransientSpec {
-    /// Settings with the wall heat capacity per metre of this exchanger's wall.
-    pub fn settings_for(&self, ex: &crate::model::Exchanger) -> TransientSettings {
-        TransientSettings { wall_heat_capacity_j_mk: self.wall_volumetric_heat_capacity * ex.wall.cross_section_m2(), ..self.settings.clone() }
+    /// Settings with the heat capacities per metre of this exchanger: its wall, the fins of
+    /// either surface (each fin's volume is half its area × thickness), and the shell.
+    pub fn settings_for(&self, ex: &crate::model::Exchanger, case: &Case) -> TransientSettings {
+        let storage = self.storage(ex, case);
+        TransientSettings { wall_heat_capacity_j_mk: storage.wall_J_mK + storage.fins_J_mK, shell: storage.shell(), ..self.settings.clone() }
+    }
+
+    /// The metal heat capacities per metre of exchanger length.
+    pub fn storage(&self, ex: &crate::model::Exchanger, case: &Case) -> Storage {
+        let fins: f64 = [&case.hot, &case.cold]
+            .iter()
+            .filter_map(|s| match &s.film {
+                FilmSpec::Compact { surface, area_per_length_m, .. } => surface.fin.map(|fin| {
+                    let t = match fin {
+                        Fin::Straight { thickness_m, .. } | Fin::Annular { thickness_m, .. } => thickness_m,
+                    };
+                    area_per_length_m * surface.fin_area_fraction * t / 2.0
+                }),
+                _ => None,
+            })
+            .sum::<f64>()
+            * self.fin_volumetric_heat_capacity;
+        let shell = match (&case.geometry, self.shell) {
+            (Geometry::DoublePipe { ds, tube_side, .. }, Some((t, rho_c))) => {
+                let area = PI / 4.0 * ((ds + 2.0 * t).powi(2) - ds * ds);
+                Some((if *tube_side == TubeSide::Hot { "cold" } else { "hot" }, area * rho_c))
+            }
+            _ => None,
+        };
+        Storage {
+            wall_J_mK: self.wall_volumetric_heat_capacity * ex.wall.cross_section_m2(),
+            fins_J_mK: fins,
+            shell_J_mK: shell.map(|s| s.1).unwrap_or(0.0),
+            shell_with: shell.map(|s| s.0),
+            shell_outer_face: shell.map(|_| "adiabatic"),
+        }
     }
 
     /// The inputs for an exchanger built from this case.
@@ -683,6 +743,26 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
     };
     let rho = c.positive("transient.wall_density_kg_m3", t.wall_density_kg_m3, "kg/m³");
     let cw = c.positive("transient.wall_specific_heat_J_kgK", t.wall_specific_heat_J_kgK, "J/(kg·K)");
+    let material = |c: &mut Checker, d: Option<f64>, cp: Option<f64>, what: &str| {
+        let d = d.map(|v| c.positive(&format!("transient.{what}_density_kg_m3"), v, "kg/m³")).unwrap_or(rho);
+        let cp = cp.map(|v| c.positive(&format!("transient.{what}_specific_heat_J_kgK"), v, "J/(kg·K)")).unwrap_or(cw);
+        d * cp
+    };
+    let fin_rho_c = material(c, t.fin_density_kg_m3, t.fin_specific_heat_J_kgK, "fin");
+    let shell_rho_c = material(c, t.shell_density_kg_m3, t.shell_specific_heat_J_kgK, "shell");
+    let shell = match (t.shell_thickness_m, geometry) {
+        (None, _) => {
+            if t.shell_density_kg_m3.is_some() || t.shell_specific_heat_J_kgK.is_some() {
+                c.fail("transient.shell_thickness_m", "is missing: the shell material is given, so give the outer pipe's wall thickness in m".into());
+            }
+            None
+        }
+        (Some(th), Geometry::DoublePipe { .. }) => Some((c.positive("transient.shell_thickness_m", th, "m"), shell_rho_c)),
+        (Some(_), _) => {
+            c.fail("transient.shell_thickness_m", "applies to a double pipe only (the outer pipe around the annulus): remove it".into());
+            None
+        }
+    };
     let integrator = match t.integrator {
         Some(IntegratorName::Explicit) => Integrator::Explicit,
         // Auto: implicit. Wall–fluid exchange and short cells make most exchanger
@@ -725,9 +805,12 @@ fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geomet
             max_steps: 5_000_000,
             initial,
             wall_heat_capacity_j_mk: 0.0,
+            shell: None,
             snapshot_times_s: snapshots,
         },
         wall_volumetric_heat_capacity: rho * cw,
+        fin_volumetric_heat_capacity: fin_rho_c,
+        shell,
         response_from_s: match t.response_from_s {
             Some(r) if !(r >= 0.0 && r < duration) => {
                 c.fail(
