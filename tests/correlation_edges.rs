@@ -255,3 +255,32 @@ fn film_coefficients_at_zero_flow() {
     let case = hxgrid::case::parse_str(&fixed, "f", "f").unwrap();
     assert!(case.warnings.iter().any(|w| w.contains("cold stream") && w.contains("keeps the full film coefficient at zero flow")), "{:?}", case.warnings);
 }
+
+/// Supercritical CO₂ near its pseudo-critical point (the built-in 10 MPa table, CoolProp):
+/// bulk-property Gnielinski is counted outside its range wherever c̄p/cp_b or ρ_w/ρ_b leaves
+/// 0.9 … 1.1 (common practice [M]); Pitla, Groll & Ramadhyani (2002) [M] — Nu = ½(Nu_G(Re_w,
+/// Pr_w) + Nu_G(Re_b, Pr_b))·k_w/k_b for CO₂ being cooled — takes the wall properties in and
+/// is counted in range there. Regression: the gas-cooler demo was reported fully in range.
+#[test]
+fn supercritical_co2_property_ratios() {
+    // The formula [C].
+    let m = model(Laminar::FullyDevelopedT, Turbulent::Pitla, Transition::Blend);
+    let state = FlowState { re: 2e4, pr: 2.0, mu_ratio: 1.3, gz: 1.0, heated: false, pr_wall: 1.5, k_ratio: 0.9 };
+    let expected = 0.5 * (gnielinski_nusselt(2.6e4, 1.5) + gnielinski_nusselt(2e4, 2.0)) * 0.9;
+    assert_relative_eq!(m.nusselt(&state, &LaminarConstants::TUBE, 1.0).0, expected, max_relative = 1e-12);
+    assert!(m.nusselt(&state, &LaminarConstants::TUBE, 1.0).1);
+    assert!(!m.nusselt(&FlowState { heated: true, ..state }, &LaminarConstants::TUBE, 1.0).1, "Pitla is for cooling");
+    // The demo.
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("cases");
+    let text = std::fs::read_to_string(dir.join("co2-gas-cooler.toml")).unwrap();
+    let rate = |t: &str| {
+        let case = hxgrid::case::parse_in(t, "co2", "co2", &dir).unwrap();
+        hxgrid::study::rate("co2", &case.build(), &case.solver, &Default::default(), &mut hxgrid::solve::SilentObserver).unwrap()
+    };
+    let bulk = rate(&text);
+    assert!(bulk.hot_cells_outside_correlation_range > bulk.cells / 10, "{}", bulk.hot_cells_outside_correlation_range);
+    assert!(bulk.hot_film_model.contains("c̄p/cp_b"), "{}", bulk.hot_film_model);
+    let pitla = rate(&text.replacen("film = \"gnielinski\"", "film = \"pitla\"", 1));
+    assert_eq!(pitla.hot_cells_outside_correlation_range, 0);
+    assert!((pitla.duty_W - bulk.duty_W).abs() / bulk.duty_W < 0.1, "{} vs {}", pitla.duty_W, bulk.duty_W);
+}

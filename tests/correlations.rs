@@ -76,7 +76,12 @@ fn transition_is_continuous() {
                 for switch in [RE_LAMINAR, RE_TURBULENT] {
                     // Gz proportional to Re, as in a real channel (D/L = 0.01).
                     let nu = |re: f64| {
-                        m.nusselt(&FlowState { re, pr, mu_ratio: 1.2, gz: re * pr * 0.01, heated: true }, &hxgrid::transfer::LaminarConstants::TUBE, 1.0).0
+                        m.nusselt(
+                            &FlowState { re, pr, mu_ratio: 1.2, gz: re * pr * 0.01, heated: true, pr_wall: pr, k_ratio: 1.0 },
+                            &hxgrid::transfer::LaminarConstants::TUBE,
+                            1.0,
+                        )
+                        .0
                     };
                     let (below, above) = (nu(switch * (1.0 - 1e-9)), nu(switch * (1.0 + 1e-9)));
                     assert_relative_eq!(below, above, max_relative = 1e-6);

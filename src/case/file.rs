@@ -158,6 +158,7 @@ pub enum FilmName {
     Gnielinski,
     DittusBoelter,
     SiederTate,
+    Pitla,
     Zukauskas,
     Compact,
     Fixed,

@@ -64,7 +64,7 @@ const STREAM: &[Field] = &[
     f("mass_flow_kg_s", Ty::Num, true, "kg/s"),
     f("pressure_bar_abs", Ty::Num, false, "bar (absolute)"),
     f("fouling_m2K_W", Ty::Num, false, "m²·K/W"),
-    f("film", Ty::Str(&["gnielinski", "dittus_boelter", "sieder_tate", "zukauskas", "compact", "fixed"]), true, "film model"),
+    f("film", Ty::Str(&["gnielinski", "dittus_boelter", "sieder_tate", "pitla", "zukauskas", "compact", "fixed"]), true, "film model"),
     f("film_coefficient_W_m2K", Ty::Num, false, "W/(m²·K)"),
     f("laminar", Ty::Str(&["fully_developed", "fully_developed_flux", "hausen", "sieder_tate"]), false, "laminar model"),
     f("wall_correction", Ty::Str(&["none", "viscosity", "gas_temperature"]), false, "property-ratio correction"),

@@ -938,7 +938,7 @@ fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             let area = c.required("geometry.area_per_length_m2_m", g.area_per_length_m2_m, "m²/m", why);
             let thickness = c.required("geometry.wall_thickness_m", g.wall_thickness_m, "m", why);
             let mut channel = |side: &str, film: FilmName, area: Option<f64>, dh: Option<f64>| {
-                let needs = matches!(film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate);
+                let needs = matches!(film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate | FilmName::Pitla);
                 let why = "needed when the film coefficient is computed from the flow";
                 let a_key = format!("geometry.{side}_flow_area_m2");
                 let d_key = format!("geometry.{side}_hydraulic_diameter_m");
@@ -1084,7 +1084,7 @@ fn hydraulic_diameter(geometry: &Geometry, side: &str, film: &FilmSpec) -> Optio
 fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> FilmSpec {
     let key = |k: &str| format!("{side}.{k}");
     let is_tube_side = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
-    let internal = matches!(s.film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate);
+    let internal = matches!(s.film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate | FilmName::Pitla);
     if s.film_coefficient_W_m2K.is_some() && s.film != FilmName::Fixed {
         c.fail(&key("film_coefficient_W_m2K"), "is only used with film = \"fixed\": remove it, or set film = \"fixed\"".into());
     }
@@ -1100,7 +1100,7 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
             } else {
                 "transition"
             }),
-            "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate) only: remove it".into(),
+            "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate, pitla) only: remove it".into(),
         );
     }
     if let (Geometry::TubeBank { .. }, Some(false)) = (geometry, is_tube_side) {
@@ -1183,10 +1183,11 @@ fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geome
                 }
             }
         },
-        FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate => FilmSpec::Internal(InternalFlow {
+        FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate | FilmName::Pitla => FilmSpec::Internal(InternalFlow {
             turbulent: match s.film {
                 FilmName::DittusBoelter => Turbulent::DittusBoelter,
                 FilmName::SiederTate => Turbulent::SiederTate,
+                FilmName::Pitla => Turbulent::Pitla,
                 _ => Turbulent::Gnielinski,
             },
             laminar: match s.laminar {

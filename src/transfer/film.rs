@@ -153,6 +153,10 @@ pub enum Turbulent {
     DittusBoelter,
     /// Sieder–Tate (includes its own viscosity ratio).
     SiederTate,
+    /// Pitla, Groll & Ramadhyani (2002) for supercritical CO₂ being cooled: the mean of
+    /// Gnielinski's Nu at wall and at bulk properties, times k_w/k_b (Int. J. Refrigeration
+    /// 25 (2002) 887–895 [M]).
+    Pitla,
 }
 
 /// Property-ratio correction for wall-to-bulk property differences.
@@ -179,6 +183,10 @@ pub enum Transition {
     /// 2300 up (counted outside only where outside its own stated range). h jumps at 2300.
     None,
 }
+
+/// Range of c̄p/cp_b and ρ_w/ρ_b within which a bulk-property turbulent correlation is
+/// counted in range (common practice [M]; see [`InternalFlow`]'s film).
+pub const PROPERTY_RATIO_RANGE: (f64, f64) = (0.9, 1.1);
 
 /// Laminar limit of the transition blend.
 pub const RE_LAMINAR: f64 = 2300.0;
@@ -253,6 +261,10 @@ pub struct FlowState {
     pub mu_ratio: f64,
     /// Graetz number Re Pr D_h/L.
     pub gz: f64,
+    /// Prandtl number at the wall temperature.
+    pub pr_wall: f64,
+    /// k_wall/k_bulk.
+    pub k_ratio: f64,
     /// True for the stream being heated.
     pub heated: bool,
 }
@@ -275,8 +287,15 @@ impl InternalFlow {
 
     /// Turbulent Nusselt number at `re` (on the correlation's own diameter) and whether the
     /// state is inside the correlation's published range.
-    fn turbulent_nusselt(&self, re: f64, pr: f64, mu_ratio: f64, heated: bool) -> (f64, bool) {
+    fn turbulent_nusselt(&self, re: f64, state: &FlowState) -> (f64, bool) {
+        let FlowState { pr, mu_ratio, heated, pr_wall, k_ratio, .. } = *state;
         match self.turbulent {
+            // Re at wall properties: G·D/μ_w = Re_b·μ_b/μ_w.
+            Turbulent::Pitla => {
+                let re_w = re * mu_ratio;
+                let nu = 0.5 * (gnielinski_nusselt(re_w, pr_wall) + gnielinski_nusselt(re, pr)) * k_ratio;
+                (nu, (3000.0..=5e6).contains(&re) && (3000.0..=5e6).contains(&re_w) && !heated)
+            }
             Turbulent::Gnielinski => (gnielinski_nusselt(re, pr), (3000.0..=5e6).contains(&re) && (0.5..=2000.0).contains(&pr)),
             Turbulent::DittusBoelter => (dittus_boelter_nusselt(re, pr, heated), re >= 1e4 && (0.6..=160.0).contains(&pr)),
             Turbulent::SiederTate => (sieder_tate_turbulent_nusselt(re, pr, mu_ratio), re >= 1e4 && (0.7..=16_700.0).contains(&pr)),
@@ -287,11 +306,11 @@ impl InternalFlow {
     /// whether the state is in range. `heat_ratio` is D_e/D_h, the turbulent correlations'
     /// diameter over the hydraulic one (1 except for Kern's annulus practice).
     pub fn nusselt(&self, state: &FlowState, shape: &LaminarConstants, heat_ratio: f64) -> (f64, bool) {
-        let FlowState { re, pr, mu_ratio, gz, heated } = *state;
+        let FlowState { re, pr, mu_ratio, gz, .. } = *state;
         let laminar_at = |re_l: f64| self.laminar_nusselt(pr, mu_ratio, gz * re_l / re.max(1e-300), shape);
         // Nu_e k/D_e expressed on D_h: Nu_e / (D_e/D_h).
         let turbulent_at = |re_t: f64| {
-            let (nu, ok) = self.turbulent_nusselt(re_t * heat_ratio, pr, mu_ratio, heated);
+            let (nu, ok) = self.turbulent_nusselt(re_t * heat_ratio, state);
             (nu / heat_ratio, ok)
         };
         match self.transition {
@@ -317,6 +336,7 @@ impl FilmCorrelation for InternalFlow {
             Turbulent::Gnielinski => "gnielinski",
             Turbulent::DittusBoelter => "dittus_boelter",
             Turbulent::SiederTate => "sieder_tate",
+            Turbulent::Pitla => "pitla",
         }
     }
     fn film(&self, i: &FilmInput) -> FilmResult {
@@ -325,12 +345,25 @@ impl FilmCorrelation for InternalFlow {
         let heat_ratio = ch.heat_diameter_m.map(|d| d / d_h).unwrap_or(1.0);
         let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
         let pr = i.props.prandtl();
-        let needs_wall = self.uses_wall_temperature();
-        let wall_props = if needs_wall { i.fluid.props(i.wall_c) } else { *i.props };
+        // Wall properties: for corrections and Pitla, and for the property-ratio check below.
+        let wall_props = i.fluid.props(i.wall_c);
         let mu_ratio = i.props.viscosity / wall_props.viscosity;
         let gz = re * pr * d_h / ch.flow_length_m;
-        let (mut nu, mut ok) = self.nusselt(&FlowState { re, pr, mu_ratio, gz, heated: i.heated }, &ch.laminar, heat_ratio);
+        let state =
+            FlowState { re, pr, mu_ratio, gz, heated: i.heated, pr_wall: wall_props.prandtl(), k_ratio: wall_props.conductivity / i.props.conductivity };
+        let (mut nu, mut ok) = self.nusselt(&state, &ch.laminar, heat_ratio);
         let turbulent = self.turbulent_regime(re);
+        // Bulk-property turbulent correlations assume the properties change little between
+        // bulk and wall; near a pseudo-critical point (supercritical CO₂) the mean cp over
+        // the film c̄p = (h_w − h_b)/(T_w − T_b) and the density can differ by tens of %.
+        // Outside 0.9 … 1.1 for c̄p/cp_b or ρ_w/ρ_b (a common-practice bound [M]) a cell is
+        // counted outside the correlation's range unless a property correction is chosen.
+        if re > RE_LAMINAR && self.wall_correction == WallCorrection::None && self.turbulent != Turbulent::Pitla {
+            let dt = i.wall_c - i.bulk_c;
+            let cp_bar = if dt.abs() > 1e-6 { (i.fluid.enthalpy(i.wall_c) - i.fluid.enthalpy(i.bulk_c)) / dt } else { wall_props.cp };
+            let within = |r: f64| (PROPERTY_RATIO_RANGE.0..=PROPERTY_RATIO_RANGE.1).contains(&r);
+            ok &= within(cp_bar / i.props.cp) && within(wall_props.density / i.props.density);
+        }
         match self.wall_correction {
             WallCorrection::None => {}
             WallCorrection::Viscosity => {
@@ -353,7 +386,9 @@ impl FilmCorrelation for InternalFlow {
         FilmResult::bare(nu * i.props.conductivity / d_h, Some(re), Some(nu), ok)
     }
     fn uses_wall_temperature(&self) -> bool {
-        self.wall_correction != WallCorrection::None || matches!(self.laminar, Laminar::SiederTate) || matches!(self.turbulent, Turbulent::SiederTate)
+        self.wall_correction != WallCorrection::None
+            || matches!(self.laminar, Laminar::SiederTate)
+            || matches!(self.turbulent, Turbulent::SiederTate | Turbulent::Pitla)
     }
     fn validity(&self) -> String {
         let lam = match self.laminar {
@@ -365,11 +400,20 @@ impl FilmCorrelation for InternalFlow {
             Turbulent::Gnielinski => ("Gnielinski", 3000.0, "Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000"),
             Turbulent::DittusBoelter => ("Dittus–Boelter", 1e4, "0.6 ≤ Pr ≤ 160, L/D ≥ 10"),
             Turbulent::SiederTate => ("Sieder–Tate", 1e4, "0.7 ≤ Pr ≤ 16 700, L/D ≥ 10"),
+            Turbulent::Pitla => ("Pitla et al. 2002 (supercritical CO₂, cooled)", 3000.0, "Re_b and Re_w ≤ 5·10⁶, the fluid being cooled"),
         };
         let own = if low == 3000.0 { "3000" } else { "10⁴" };
+        let ratios = if self.wall_correction == WallCorrection::None && self.turbulent != Turbulent::Pitla {
+            format!(
+                "; turbulent and blended cells with c̄p/cp_b or ρ_w/ρ_b outside {} … {} counted outside (bulk properties assumed)",
+                PROPERTY_RATIO_RANGE.0, PROPERTY_RATIO_RANGE.1
+            )
+        } else {
+            String::new()
+        };
         match self.transition {
             Transition::Blend => {
-                format!("{lam}; {name} {own} ≤ Re, {rest}, used from Re = 10⁴; 2300 < Re < 10⁴ blended linearly (counted outside every range)")
+                format!("{lam}; {name} {own} ≤ Re, {rest}, used from Re = 10⁴; 2300 < Re < 10⁴ blended linearly (counted outside every range){ratios}")
             }
             Transition::None => {
                 let gap = if low > RE_LAMINAR {
@@ -377,7 +421,7 @@ impl FilmCorrelation for InternalFlow {
                 } else {
                     " (cells with 2300 < Re < 3000 are outside its own range and counted so)".into()
                 };
-                format!("{lam}; {name} from Re = 2300 as published, its range {own} ≤ Re, {rest}{gap}; no transition blend")
+                format!("{lam}; {name} from Re = 2300 as published, its range {own} ≤ Re, {rest}{gap}; no transition blend{ratios}")
             }
         }
     }
