@@ -157,14 +157,18 @@ fn check(path: &Path) -> ExitCode {
 }
 
 fn new_case(path: &Path) -> ExitCode {
-    if path.exists() {
-        errln!("error: {} already exists; hxgrid new never overwrites a file: choose another name", path.display());
-        return ExitCode::from(EXIT_INPUT);
-    }
-    match std::fs::write(path, case::STARTER) {
+    use std::io::Write as _;
+    // create_new: never overwrite, and never follow a link (even a dangling one) to write
+    // somewhere else.
+    let file = std::fs::OpenOptions::new().write(true).create_new(true).open(path);
+    match file.and_then(|mut f| f.write_all(case::STARTER.as_bytes())) {
         Ok(()) => {
             outln!("wrote {} — edit it, then: hxgrid run {}", path.display(), path.display());
             ExitCode::SUCCESS
+        }
+        Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {
+            errln!("error: {} already exists; hxgrid new never overwrites a file: choose another name", path.display());
+            ExitCode::from(EXIT_INPUT)
         }
         Err(e) => {
             errln!("error: cannot write {}: {e}", path.display());
@@ -347,15 +351,16 @@ fn print_report(r: &SteadyReport) {
     outln!("\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
     outln!("  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
     outln!("\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
-    outln!("{:<22}{:>16.1}{:>16.1}{:>11.2}%", "duty (W)", r.duty_W, l.duty_w, r.grid_vs_lumped.duty_difference_percent);
-    outln!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "hot outlet (°C)", r.hot_outlet_C, l.hot_outlet_c, r.grid_vs_lumped.hot_outlet_difference_K);
-    outln!("{:<22}{:>16.3}{:>16.3}{:>10.3} K", "cold outlet (°C)", r.cold_outlet_C, l.cold_outlet_c, r.grid_vs_lumped.cold_outlet_difference_K);
-    outln!("{:<22}{:>16.2}{:>16.2}{:>11.2}%", "UA (W/K)", r.UA_W_K, l.ua_w_k, r.grid_vs_lumped.ua_difference_percent);
-    outln!("{:<22}{:>16.5}{:>16.5}", "effectiveness", r.effectiveness, l.effectiveness);
-    outln!("{:<22}{:>16.5}{:>16.5}", "NTU", r.ntu, l.ntu);
-    outln!("{:<22}{:>16.5}{:>16.5}", "capacity ratio", r.capacity_ratio, l.capacity_ratio);
+    use hxgrid::text::fixed as f;
+    outln!("{:<22}{:>16}{:>16}{:>11}%", "duty (W)", f(r.duty_W, 1), f(l.duty_w, 1), f(r.grid_vs_lumped.duty_difference_percent, 2));
+    outln!("{:<22}{:>16}{:>16}{:>10} K", "hot outlet (°C)", f(r.hot_outlet_C, 3), f(l.hot_outlet_c, 3), f(r.grid_vs_lumped.hot_outlet_difference_K, 3));
+    outln!("{:<22}{:>16}{:>16}{:>10} K", "cold outlet (°C)", f(r.cold_outlet_C, 3), f(l.cold_outlet_c, 3), f(r.grid_vs_lumped.cold_outlet_difference_K, 3));
+    outln!("{:<22}{:>16}{:>16}{:>11}%", "UA (W/K)", f(r.UA_W_K, 2), f(l.ua_w_k, 2), f(r.grid_vs_lumped.ua_difference_percent, 2));
+    outln!("{:<22}{:>16}{:>16}", "effectiveness", f(r.effectiveness, 5), f(l.effectiveness, 5));
+    outln!("{:<22}{:>16}{:>16}", "NTU", f(r.ntu, 5), f(l.ntu, 5));
+    outln!("{:<22}{:>16}{:>16}", "capacity ratio", f(r.capacity_ratio, 5), f(l.capacity_ratio, 5));
     if let (Some(a), Some(b)) = (r.lmtd_K, l.lmtd_k) {
-        outln!("{:<22}{:>16.4}{:>16.4}", "LMTD (K)", a, b);
+        outln!("{:<22}{:>16}{:>16}", "LMTD (K)", f(a, 4), f(b, 4));
     }
     let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
     outln!("{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");

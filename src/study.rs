@@ -220,8 +220,8 @@ fn assemble(
         let rel = (e.estimated_error.duty_w / q.duty_w).abs();
         if rel > 1e-3 {
             warnings.push(format!(
-                "estimated grid error in duty is {:.2} %: use more cells (with the {} scheme, of order {}, the error falls about {}-fold per doubling)",
-                100.0 * rel,
+                "estimated grid error in duty is {} %: use more cells (with the {} scheme, of order {}, the error falls about {}-fold per doubling)",
+                crate::text::num(100.0 * rel),
                 ex.scheme.as_str(),
                 e.order,
                 2f64.powf(e.order)

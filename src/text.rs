@@ -38,6 +38,16 @@ pub fn num(v: f64) -> String {
     }
 }
 
+/// A number for a table column: fixed with `decimals` decimals in the ordinary range,
+/// else [`num`] (a value of 10³⁰⁰ must not print 300 digits).
+pub fn fixed(v: f64, decimals: usize) -> String {
+    if v.is_finite() && v.abs() < 1e9 {
+        format!("{v:.decimals$}")
+    } else {
+        num(v)
+    }
+}
+
 /// User text for a message, in double quotes: control characters escaped (`\u{1b}`),
 /// quotes and backslashes escaped, cut to `max` characters with an ellipsis.
 pub fn quote(s: &str, max: usize) -> String {

@@ -267,3 +267,15 @@ fn large_grids_thin_the_profile_file_unless_asked() {
     assert!(o.status.success(), "{}", text(&o));
     assert_eq!(complete(&dir.join("all")), 50_000);
 }
+
+/// `hxgrid new` never writes through a link, even a dangling one (it would create a file
+/// wherever the link points), and never overwrites.
+#[cfg(unix)]
+#[test]
+fn new_never_follows_a_link() {
+    let dir = scratch("newlink");
+    std::os::unix::fs::symlink(dir.join("elsewhere.toml"), dir.join("link.toml")).unwrap();
+    let o = run(&["new", "link.toml"], &dir);
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    assert!(!dir.join("elsewhere.toml").exists());
+}
