@@ -331,7 +331,7 @@ fn print_transient(r: &hxgrid::scenario::TransientReport) {
             f(o.settling_95_s),
             f(o.settling_99_s),
             o.overshoot_percent,
-            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (no flow)".into())
+            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (none)".into())
         );
     }
     outln!("\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);

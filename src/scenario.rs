@@ -136,7 +136,9 @@ pub fn run(
         Some(_) => None,
         None => match solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver) {
             Ok(s) => Some(s),
-            Err(crate::solve::SolveError::NoFlow) => None,
+            // No steady comparison where none is defined: both flows stopped, or the
+            // schedules end with the "hot" inlet no hotter than the "cold" one.
+            Err(crate::solve::SolveError::NoFlow | crate::solve::SolveError::InletsReversed { .. }) => None,
             Err(e) => return Err(e.into()),
         },
     };

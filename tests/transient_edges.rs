@@ -210,3 +210,17 @@ fn shell_and_fin_metal_store_heat() {
     let fins = 40.0 * 0.85 * 0.00015 / 2.0 * 2700.0 * 900.0;
     assert!((storage.fins_J_mK - fins).abs() < 1e-9 * fins, "{storage:?}");
 }
+
+/// Schedules that end with the "hot" inlet below the "cold" one are a valid transient (heat
+/// then flows the other way); only the steady comparison, which needs the hot stream to be
+/// the hotter, is left out (null). Regression: the whole run failed on the final steady solve.
+#[test]
+fn schedules_may_reverse_the_inlets() {
+    let text = startup_text().replace("cells = 200", "cells = 40")
+        + "\n[transient.hot_inlet_temperature_C]\nkind = \"ramp\"\nstart_s = 100.0\nend_s = 200.0\nto = 5.0\n";
+    let r = simulate(&text).unwrap();
+    assert_eq!(r.status, "completed");
+    assert_eq!(r.hot_outlet.steady_final_C, None);
+    let (lo, hi) = extremes(&r);
+    assert!(lo >= 5.0 - 1e-3 && hi <= 95.0 + 1e-3, "{lo} … {hi}");
+}
