@@ -17,6 +17,7 @@ use std::path::PathBuf;
         "  hxgrid check my.toml                          validate only\n",
         "  hxgrid new my.toml                            write a commented starter case\n",
         "  hxgrid fluids                                 list the fluids a case can name\n",
+        "  hxgrid schema > hxgrid-case.schema.json      the case file's JSON Schema\n",
         "  hxgrid props co2-10MPa --from 30 --to 60      print a fluid's properties\n",
         "  hxgrid props --table my-oil.csv               check and print your own table\n\n",
         "Exit codes: 0 success · 2 command-line usage error · 3 invalid case file or input · ",
@@ -74,6 +75,9 @@ pub enum Command {
     },
     /// List the fluids a case can name.
     Fluids,
+    /// Print the case file's JSON Schema (for editors' completion and checking; TOML
+    /// editors that read JSON Schema apply it directly).
+    Schema,
     /// Print a fluid's properties over a temperature range, or check a table file.
     #[command(after_help = TABLE_HELP)]
     Props {

@@ -47,6 +47,10 @@ fn main() -> ExitCode {
         Command::Simulate { case, out, quiet } => simulate(&case, out, quiet),
         Command::Check { case } => check(&case),
         Command::New { path } => new_case(&path),
+        Command::Schema => {
+            outln!("{}", serde_json::to_string_pretty(&case::json_schema()).expect("a schema serialises"));
+            ExitCode::SUCCESS
+        }
         Command::Fluids => {
             for (name, desc) in hxgrid::fluid::library::catalogue() {
                 outln!("{name:<22} {desc}");

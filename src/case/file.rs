@@ -4,9 +4,10 @@
 #![allow(missing_docs)] // each field is documented in README's input reference
 
 use crate::model::Arrangement;
+use schemars::JsonSchema;
 use serde::Deserialize;
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseFile {
     pub name: Option<String>,
@@ -22,7 +23,7 @@ pub struct CaseFile {
     pub transient: Option<TransientFile>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum IntegratorName {
     Auto,
@@ -30,14 +31,14 @@ pub enum IntegratorName {
     Implicit,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum InitialName {
     Steady,
     Uniform,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum SignalKind {
     Step,
@@ -47,7 +48,7 @@ pub enum SignalKind {
 
 /// A time schedule for an inlet temperature or a mass flow. Before it starts, the value is
 /// the stream's own value from the case.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct SignalFile {
     pub kind: SignalKind,
@@ -63,7 +64,7 @@ pub struct SignalFile {
     pub values: Option<Vec<f64>>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct TransientFile {
     pub duration_s: f64,
@@ -94,7 +95,7 @@ pub struct TransientFile {
     pub cold_mass_flow_kg_s: Option<SignalFile>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum GeometryKind {
     DoublePipe,
@@ -102,28 +103,28 @@ pub enum GeometryKind {
     TubeBank,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum AnnulusDiameter {
     Hydraulic,
     Equivalent,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum LayoutName {
     Aligned,
     Staggered,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum SideName {
     Hot,
     Cold,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct GeometryFile {
     pub kind: GeometryKind,
@@ -152,7 +153,7 @@ pub struct GeometryFile {
     pub cold_hydraulic_diameter_m: Option<f64>,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum FilmName {
     Gnielinski,
@@ -164,7 +165,7 @@ pub enum FilmName {
     Fixed,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum LaminarName {
     FullyDeveloped,
@@ -173,14 +174,21 @@ pub enum LaminarName {
     SiederTate,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
+pub enum PhaseName {
+    Liquid,
+    Vapour,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum TransitionName {
     Blend,
     None,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum WallCorrectionName {
     None,
@@ -188,7 +196,7 @@ pub enum WallCorrectionName {
     GasTemperature,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum FinName {
     None,
@@ -197,7 +205,7 @@ pub enum FinName {
 }
 
 /// A compact (possibly finned) surface described by j and f test data.
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CompactFile {
     /// CSV with header reynolds,colburn_j,fanning_f (relative to the case file).
@@ -215,7 +223,7 @@ pub struct CompactFile {
     pub fin_tip_radius_m: Option<f64>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct StreamFile {
     /// "water", "constant", "table" or a built-in fluid name (`hxgrid fluids`).
@@ -223,7 +231,7 @@ pub struct StreamFile {
     /// With fluid = "table": path of the table file, relative to the case file.
     pub table_file: Option<String>,
     /// With fluid = "water": "liquid" (default) or "vapour".
-    pub phase: Option<String>,
+    pub phase: Option<PhaseName>,
     pub inlet_temperature_C: f64,
     pub mass_flow_kg_s: f64,
     pub pressure_bar_abs: Option<f64>,
@@ -242,7 +250,7 @@ pub struct StreamFile {
     pub properties: Option<PropertiesFile>,
 }
 
-#[derive(Debug, Clone, Deserialize)]
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PropertiesFile {
     pub density_kg_m3: f64,
@@ -251,7 +259,7 @@ pub struct PropertiesFile {
     pub conductivity_W_mK: f64,
 }
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum SchemeName {
     Trapezoidal,
@@ -259,7 +267,7 @@ pub enum SchemeName {
     Tvd,
 }
 
-#[derive(Debug, Clone, Default, Deserialize)]
+#[derive(Debug, Clone, Default, Deserialize, JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct SolverFile {
     /// Spatial scheme: "trapezoidal" (default), "upwind" or "tvd".

@@ -11,3 +11,15 @@ pub use validate::{load, parse_in, parse_str, Case, CaseError, FilmSpec, Geometr
 
 /// A commented starter case (an invented scenario) written by `hxgrid new`.
 pub const STARTER: &str = include_str!("starter.toml");
+
+/// The case file's JSON Schema (draft 2020-12), derived from the serde types of
+/// [`CaseFile`]: what `hxgrid schema` prints and what the shape check walks.
+pub fn json_schema() -> serde_json::Value {
+    serde_json::to_value(schemars::schema_for!(CaseFile)).expect("a schema serialises")
+}
+
+/// The shape problems of case text (unknown keys, missing keys, wrong types, invalid
+/// words) as the shape check finds them from [`json_schema`]; Err for a TOML syntax error.
+pub fn shape_problems(text: &str) -> Result<Vec<Problem>, String> {
+    schema::check(text).map(|s| s.problems)
+}

@@ -6,147 +6,138 @@
 use super::validate::{closest, Problem};
 use toml_edit::{ImDocument, Item, TableLike, Value};
 
-/// What a key holds.
-#[derive(Debug, Clone, Copy)]
+/// What a key holds, read from the case file's JSON Schema ([`super::json_schema`]).
+#[derive(Debug, Clone)]
 enum Ty {
     /// A number (integer or float).
     Num,
     /// A whole number.
     Int,
     /// A string, one of the listed words (any string if empty).
-    Str(&'static [&'static str]),
+    Str(Vec<String>),
     /// A list of numbers.
     NumList,
-    /// A table with these fields.
-    Table(&'static [Field]),
+    /// A table (an object schema).
+    Table(Value2),
 }
 
+type Value2 = serde_json::Value;
+
 /// One key of a table.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone)]
 struct Field {
-    key: &'static str,
+    key: String,
     ty: Ty,
     required: bool,
     /// Unit or hint for messages.
-    hint: &'static str,
+    hint: String,
 }
 
-const fn f(key: &'static str, ty: Ty, required: bool, hint: &'static str) -> Field {
-    Field { key, ty, required, hint }
+/// The unit a key's name carries (the naming rule of the case file), for messages.
+fn unit_hint(key: &str) -> Option<&'static str> {
+    const UNITS: [(&str, &str); 17] = [
+        ("_m2_m", "m²/m"),
+        ("_m2K_W", "m²·K/W"),
+        ("_W_m2K", "W/(m²·K)"),
+        ("_W_mK", "W/(m·K)"),
+        ("_J_kgK", "J/(kg·K)"),
+        ("_kg_m3", "kg/m³"),
+        ("_kg_s", "kg/s"),
+        ("_Pa_s", "Pa·s"),
+        ("_bar_abs", "bar (absolute)"),
+        ("_m2", "m²"),
+        ("_m", "m"),
+        ("_C", "°C"),
+        ("_K", "K"),
+        ("_s", "s"),
+        ("_Pa", "Pa"),
+        ("_W", "W"),
+        ("_fraction", "0…1"),
+    ];
+    UNITS.iter().find(|(suffix, _)| key.ends_with(suffix)).map(|(_, u)| *u)
 }
 
-const PROPERTIES: &[Field] = &[
-    f("density_kg_m3", Ty::Num, true, "kg/m³"),
-    f("specific_heat_J_kgK", Ty::Num, true, "J/(kg·K)"),
-    f("viscosity_Pa_s", Ty::Num, true, "Pa·s"),
-    f("conductivity_W_mK", Ty::Num, true, "W/(m·K)"),
-];
+/// The schema `s` with a `$ref` resolved against the root's `$defs`.
+fn resolve<'a>(root: &'a Value2, s: &'a Value2) -> &'a Value2 {
+    match s.get("$ref").and_then(|r| r.as_str()).and_then(|r| r.strip_prefix("#/$defs/")) {
+        Some(name) => &root["$defs"][name],
+        None => s,
+    }
+}
 
-const COMPACT: &[Field] = &[
-    f("data_file", Ty::Str(&[]), true, "path of a reynolds,colburn_j,fanning_f file"),
-    f("hydraulic_diameter_m", Ty::Num, true, "m"),
-    f("free_flow_area_m2", Ty::Num, true, "m²"),
-    f("area_per_length_m2_m", Ty::Num, true, "m²/m"),
-    f("fin", Ty::Str(&["none", "straight", "annular"]), true, "fin shape"),
-    f("fin_area_fraction", Ty::Num, false, "0…1"),
-    f("fin_length_m", Ty::Num, false, "m"),
-    f("fin_thickness_m", Ty::Num, false, "m"),
-    f("fin_conductivity_W_mK", Ty::Num, false, "W/(m·K)"),
-    f("fin_root_radius_m", Ty::Num, false, "m"),
-    f("fin_tip_radius_m", Ty::Num, false, "m"),
-];
+/// Whether a schema type (a string or a list of them) includes `t`.
+fn has_type(s: &Value2, t: &str) -> bool {
+    match s.get("type") {
+        Some(Value2::String(x)) => x == t,
+        Some(Value2::Array(a)) => a.iter().any(|x| x == t),
+        _ => false,
+    }
+}
 
-const STREAM: &[Field] = &[
-    f("fluid", Ty::Str(&[]), true, "a fluid name (hxgrid fluids)"),
-    f("table_file", Ty::Str(&[]), false, "path of a property table"),
-    f("phase", Ty::Str(&["liquid", "vapour"]), false, "water phase"),
-    f("inlet_temperature_C", Ty::Num, true, "°C"),
-    f("mass_flow_kg_s", Ty::Num, true, "kg/s"),
-    f("pressure_bar_abs", Ty::Num, false, "bar (absolute)"),
-    f("fouling_m2K_W", Ty::Num, false, "m²·K/W"),
-    f("film", Ty::Str(&["gnielinski", "dittus_boelter", "sieder_tate", "pitla", "zukauskas", "compact", "fixed"]), true, "film model"),
-    f("film_coefficient_W_m2K", Ty::Num, false, "W/(m²·K)"),
-    f("laminar", Ty::Str(&["fully_developed", "fully_developed_flux", "hausen", "sieder_tate"]), false, "laminar model"),
-    f("wall_correction", Ty::Str(&["none", "viscosity", "gas_temperature"]), false, "property-ratio correction"),
-    f("transition", Ty::Str(&["blend", "none"]), false, "laminar–turbulent transition"),
-    f("roughness_m", Ty::Num, false, "m"),
-    f("properties", Ty::Table(PROPERTIES), false, "constant properties"),
-    f("compact", Ty::Table(COMPACT), false, "compact surface"),
-];
+/// The words a string schema allows (empty: any string).
+fn words(root: &Value2, s: &Value2) -> Option<Vec<String>> {
+    let s = resolve(root, s);
+    if let Some(e) = s.get("enum").and_then(|e| e.as_array()) {
+        return Some(e.iter().filter_map(|w| w.as_str().map(str::to_string)).collect());
+    }
+    if let Some(c) = s.get("const").and_then(|c| c.as_str()) {
+        return Some(vec![c.to_string()]);
+    }
+    for alt in ["oneOf", "anyOf"] {
+        if let Some(list) = s.get(alt).and_then(|l| l.as_array()) {
+            let mut out = Vec::new();
+            for a in list.iter().filter(|a| !(has_type(a, "null") && a.get("type").is_some_and(|t| t.is_string()))) {
+                out.extend(words(root, a)?);
+            }
+            return Some(out);
+        }
+    }
+    None
+}
 
-const GEOMETRY: &[Field] = &[
-    f("kind", Ty::Str(&["double_pipe", "plane_wall", "tube_bank"]), true, "geometry kind"),
-    f("wall_conductivity_W_mK", Ty::Num, true, "W/(m·K)"),
-    f("tube_inner_diameter_m", Ty::Num, false, "m"),
-    f("tube_outer_diameter_m", Ty::Num, false, "m"),
-    f("shell_inner_diameter_m", Ty::Num, false, "m"),
-    f("tube_side", Ty::Str(&["hot", "cold"]), false, "which stream is in the tubes"),
-    f("annulus_heat_diameter", Ty::Str(&["hydraulic", "equivalent"]), false, "annulus diameter for h"),
-    f("layout", Ty::Str(&["aligned", "staggered"]), false, "tube-bank layout"),
-    f("transverse_pitch_m", Ty::Num, false, "m"),
-    f("longitudinal_pitch_m", Ty::Num, false, "m"),
-    f("rows", Ty::Int, false, "a whole number"),
-    f("tubes_per_row", Ty::Int, false, "a whole number"),
-    f("tube_length_m", Ty::Num, false, "m"),
-    f("tube_circuits", Ty::Int, false, "a whole number"),
-    f("area_per_length_m2_m", Ty::Num, false, "m²/m"),
-    f("wall_thickness_m", Ty::Num, false, "m"),
-    f("hot_flow_area_m2", Ty::Num, false, "m²"),
-    f("hot_hydraulic_diameter_m", Ty::Num, false, "m"),
-    f("cold_flow_area_m2", Ty::Num, false, "m²"),
-    f("cold_hydraulic_diameter_m", Ty::Num, false, "m"),
-];
+/// The type of a property schema.
+fn type_of(root: &Value2, s: &Value2) -> Ty {
+    let s = resolve(root, s);
+    if let Some(list) = s.get("anyOf").and_then(|l| l.as_array()) {
+        let real: Vec<&Value2> = list.iter().filter(|a| a.get("type") != Some(&Value2::String("null".into()))).collect();
+        if real.len() == 1 {
+            return type_of(root, real[0]);
+        }
+    }
+    if let Some(w) = words(root, s).filter(|w| !w.is_empty()) {
+        return Ty::Str(w);
+    }
+    if has_type(s, "object") {
+        Ty::Table(s.clone())
+    } else if has_type(s, "array") {
+        Ty::NumList
+    } else if has_type(s, "integer") {
+        Ty::Int
+    } else if has_type(s, "number") {
+        Ty::Num
+    } else {
+        Ty::Str(Vec::new())
+    }
+}
 
-const SOLVER: &[Field] = &[
-    f("cells", Ty::Int, false, "a whole number"),
-    f("residual_tolerance", Ty::Num, false, "a relative tolerance"),
-    f("max_iterations", Ty::Int, false, "a whole number"),
-    f("scheme", Ty::Str(&["trapezoidal", "upwind", "tvd"]), false, "spatial scheme"),
-];
-
-const SIGNAL: &[Field] = &[
-    f("kind", Ty::Str(&["step", "ramp", "table"]), true, "schedule kind"),
-    f("time_s", Ty::Num, false, "s"),
-    f("start_s", Ty::Num, false, "s"),
-    f("end_s", Ty::Num, false, "s"),
-    f("to", Ty::Num, false, "the new value"),
-    f("times_s", Ty::NumList, false, "a list of times in s"),
-    f("values", Ty::NumList, false, "a list of values"),
-];
-
-const TRANSIENT: &[Field] = &[
-    f("duration_s", Ty::Num, true, "s"),
-    f("output_interval_s", Ty::Num, false, "s"),
-    f("integrator", Ty::Str(&["auto", "explicit", "implicit"]), false, "integrator"),
-    f("tolerance_K", Ty::Num, false, "K"),
-    f("initial", Ty::Str(&["steady", "uniform"]), false, "initial state"),
-    f("initial_temperature_C", Ty::Num, false, "°C"),
-    f("wall_density_kg_m3", Ty::Num, true, "kg/m³"),
-    f("wall_specific_heat_J_kgK", Ty::Num, true, "J/(kg·K)"),
-    f("shell_thickness_m", Ty::Num, false, "m"),
-    f("shell_density_kg_m3", Ty::Num, false, "kg/m³"),
-    f("shell_specific_heat_J_kgK", Ty::Num, false, "J/(kg·K)"),
-    f("fin_density_kg_m3", Ty::Num, false, "kg/m³"),
-    f("fin_specific_heat_J_kgK", Ty::Num, false, "J/(kg·K)"),
-    f("snapshot_times_s", Ty::NumList, false, "a list of times in s"),
-    f("response_from_s", Ty::Num, false, "s"),
-    f("hot_inlet_temperature_C", Ty::Table(SIGNAL), false, "a schedule"),
-    f("hot_mass_flow_kg_s", Ty::Table(SIGNAL), false, "a schedule"),
-    f("cold_inlet_temperature_C", Ty::Table(SIGNAL), false, "a schedule"),
-    f("cold_mass_flow_kg_s", Ty::Table(SIGNAL), false, "a schedule"),
-];
-
-const ROOT: &[Field] = &[
-    f("name", Ty::Str(&[]), false, "a name"),
-    f("description", Ty::Str(&[]), false, "text"),
-    f("arrangement", Ty::Str(&["counterflow", "parallel"]), true, "flow arrangement"),
-    f("length_m", Ty::Num, false, "m"),
-    f("geometry", Ty::Table(GEOMETRY), true, "the [geometry] table"),
-    f("hot", Ty::Table(STREAM), true, "the [hot] table"),
-    f("cold", Ty::Table(STREAM), true, "the [cold] table"),
-    f("solver", Ty::Table(SOLVER), false, "the [solver] table"),
-    f("transient", Ty::Table(TRANSIENT), false, "the [transient] table"),
-];
+/// The fields of an object schema, in declaration order.
+fn fields_of(root: &Value2, object: &Value2) -> Vec<Field> {
+    let required: Vec<&str> = object.get("required").and_then(|r| r.as_array()).map(|r| r.iter().filter_map(|k| k.as_str()).collect()).unwrap_or_default();
+    let Some(props) = object.get("properties").and_then(|p| p.as_object()) else { return Vec::new() };
+    props
+        .iter()
+        .map(|(key, s)| {
+            let ty = type_of(root, s);
+            let hint = match (&ty, unit_hint(key)) {
+                (Ty::Table(_), _) => format!("the [{key}] table"),
+                (Ty::Int, _) => "a whole number".to_string(),
+                (_, Some(u)) => u.to_string(),
+                _ => key.replace('_', " "),
+            };
+            Field { key: key.clone(), ty, required: required.contains(&key.as_str()), hint }
+        })
+        .collect()
+}
 
 /// Result of the shape check.
 pub struct Shape {
@@ -158,7 +149,7 @@ pub struct Shape {
     pub suggested: Vec<String>,
     /// Keys holding a word outside their choices, with a valid word to stand in for it so
     /// that the rest of the file can still be checked.
-    pub bad_words: Vec<(Vec<String>, &'static str)>,
+    pub bad_words: Vec<(Vec<String>, String)>,
     /// Keys holding a value of the wrong type (set aside like unknown keys).
     pub wrong_type: Vec<Vec<String>>,
 }
@@ -184,11 +175,12 @@ fn describe(v: &Value) -> String {
 pub fn check(text: &str) -> Result<Shape, String> {
     let doc = ImDocument::parse(text).map_err(|e| e.to_string())?;
     let mut shape = Shape { problems: Vec::new(), unknown: Vec::new(), suggested: Vec::new(), bad_words: Vec::new(), wrong_type: Vec::new() };
-    walk(text, doc.as_table(), &mut Vec::new(), ROOT, None, &mut shape);
+    let root = super::json_schema();
+    walk(text, &root, doc.as_table(), &mut Vec::new(), &fields_of(&root, &root), None, &mut shape);
     Ok(shape)
 }
 
-fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Field], header_line: Option<usize>, shape: &mut Shape) {
+fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Field], header_line: Option<usize>, shape: &mut Shape) {
     let dotted = |path: &[String], key: &str| if path.is_empty() { key.to_string() } else { format!("{}.{key}", path.join(".")) };
     let valid: Vec<String> = fields.iter().map(|f| f.key.to_string()).collect();
     // Keys suggested for a misspelling are not reported again as missing.
@@ -221,13 +213,13 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
             p.push(key.to_string());
             shape.wrong_type.push(p);
         };
-        match (field.ty, item) {
+        match (&field.ty, item) {
             (Ty::Num, Item::Value(Value::Float(_) | Value::Integer(_))) => {}
             (Ty::Num, _) => wrong(&format!("a number ({})", field.hint)),
             (Ty::Int, Item::Value(Value::Integer(_))) => {}
             (Ty::Int, _) => wrong("a whole number"),
             (Ty::Str(words), Item::Value(Value::String(s))) => {
-                if !words.is_empty() && !words.contains(&s.value().as_str()) {
+                if !words.is_empty() && !words.iter().any(|w| w == s.value()) {
                     let options: Vec<String> = words.iter().map(|w| w.to_string()).collect();
                     let hint = closest(s.value(), &options).map(|c| format!(" Did you mean \"{c}\"?")).unwrap_or_default();
                     shape.problems.push(Problem {
@@ -242,7 +234,7 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
                     });
                     let mut p = path.clone();
                     p.push(key.to_string());
-                    shape.bad_words.push((p, words[0]));
+                    shape.bad_words.push((p, words[0].clone()));
                 }
             }
             (Ty::Str(words), _) => {
@@ -262,22 +254,22 @@ fn walk(text: &str, table: &dyn TableLike, path: &mut Vec<String>, fields: &[Fie
                 Some(t) => {
                     path.push(key.to_string());
                     let header = item.span().map(|s| line_of(text, s.start)).or(line);
-                    walk(text, t, path, sub, header, shape);
+                    walk(text, root, t, path, &fields_of(root, sub), header, shape);
                     path.pop();
                 }
                 None => wrong(&format!("a table [{}]", dotted(path, key))),
             },
         }
     }
-    for field in fields.iter().filter(|f| f.required && !table.contains_key(f.key) && !suggested.iter().any(|k| k == f.key)) {
-        let what = match field.ty {
+    for field in fields.iter().filter(|f| f.required && !table.contains_key(&f.key) && !suggested.iter().any(|k| *k == f.key)) {
+        let what = match &field.ty {
             Ty::Table(_) => format!("is missing: add {}", field.hint),
             Ty::Str(words) if !words.is_empty() => {
                 format!("is missing: give the {}, one of {}", field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "))
             }
             _ => format!("is missing: give {}", field.hint),
         };
-        shape.problems.push(Problem { key: dotted(path, field.key), line: header_line, message: what });
+        shape.problems.push(Problem { key: dotted(path, &field.key), line: header_line, message: what });
     }
 }
 

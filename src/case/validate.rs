@@ -1325,9 +1325,9 @@ fn fluid_choice(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path) ->
         c.fail(&key("phase"), format!("is only used with fluid = \"water\" (fluid is {}): remove it", crate::text::quote(&s.fluid, 40)));
     }
     match s.fluid.as_str() {
-        "water" => Some(FluidChoice::Water(match s.phase.as_deref() {
-            Some("vapour") => WaterPhase::Vapour,
-            _ => WaterPhase::Liquid,
+        "water" => Some(FluidChoice::Water(match s.phase {
+            Some(PhaseName::Vapour) => WaterPhase::Vapour,
+            None | Some(PhaseName::Liquid) => WaterPhase::Liquid,
         })),
         "constant" => match &s.properties {
             Some(p) => Some(FluidChoice::Constant(Props {

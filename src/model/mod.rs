@@ -27,7 +27,7 @@ pub use scheme::{Grid, Scheme};
 use std::sync::Arc;
 
 /// Flow arrangement of the two streams.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "snake_case")]
 pub enum Arrangement {
     /// Streams flow in opposite directions.
