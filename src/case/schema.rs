@@ -261,7 +261,7 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
             },
         }
     }
-    for field in fields.iter().filter(|f| f.required && !table.contains_key(&f.key) && !suggested.iter().any(|k| *k == f.key)) {
+    for field in fields.iter().filter(|f| f.required && !table.contains_key(&f.key) && !suggested.contains(&f.key)) {
         let what = match &field.ty {
             Ty::Table(_) => format!("is missing: add {}", field.hint),
             Ty::Str(words) if !words.is_empty() => {
