@@ -228,7 +228,7 @@ impl Storage {
 /// A validated transient scenario.
 #[derive(Debug, Clone)]
 pub struct TransientSpec {
-    /// Settings (cells from [solver]); the wall heat capacity is filled in by
+    /// Settings (cells from `[solver]`); the wall heat capacity is filled in by
     /// [`TransientSpec::settings_for`].
     pub settings: TransientSettings,
     /// Wall density × specific heat, J/(m³·K).

@@ -5,7 +5,7 @@
 //! Must not: touch files or the terminal. A constructed fluid is valid; its property
 //! functions accept any temperature (they clamp to the valid range so that Newton
 //! iterates stay finite) and the solver checks the converged state against
-//! [`Fluid::range_c`].
+//! [`Fluid::range`].
 
 mod constant;
 pub mod library;

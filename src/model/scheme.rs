@@ -15,7 +15,7 @@
 //! - `Tvd`: the value is the cell's mean temperature; the face value leaving a cell is the
 //!   MUSCL reconstruction T_i + ½φ(r)(T_i − T_up), r = (T_down − T_i)/(T_i − T_up), with van
 //!   Albada's limiter φ(r) = (r² + r)/(r² + 1) (van Albada, van Leer & Roberts, Astron.
-//!   Astrophys. 108 (1982) 76–84 [M]), written as T_i + ½ab(a + b)/(a² + b² + ε²) with
+//!   Astrophys. 108 (1982) 76–84 \[M\]), written as T_i + ½ab(a + b)/(a² + b² + ε²) with
 //!   a = T_i − T_up, b = T_down − T_i. Second order where the profile is smooth, sharp
 //!   fronts, and — unlike van Leer's limiter, tried first — smooth in a and b, so Newton
 //!   keeps converging quadratically where a stream flattens out (van Leer's switch on the

@@ -7,7 +7,7 @@
 //! standing in for one.
 //!
 //! Size: above [`PROFILE_ROWS`] cells the profile CSV holds every k-th cell (first and last
-//! always) unless `all_cells` is set; plots draw at most [`svg::PLOT_POINTS`] points a curve.
+//! always) unless `all_cells` is set; plots draw at most `svg::PLOT_POINTS` (4 000) points a curve.
 
 mod csv;
 mod finite;

@@ -11,7 +11,7 @@ use nalgebra::{Matrix3, Vector3};
 /// `lower[i]·x[i−1] + diag[i]·x[i] + upper[i]·x[i+1]`.
 #[derive(Debug, Clone)]
 pub struct BlockTridiagonal {
-    /// Sub-diagonal blocks (lower[0] unused).
+    /// Sub-diagonal blocks (`lower[0]` unused).
     pub lower: Vec<Matrix3<f64>>,
     /// Diagonal blocks.
     pub diag: Vec<Matrix3<f64>>,

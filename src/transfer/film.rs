@@ -105,7 +105,7 @@ pub fn dittus_boelter_nusselt(re: f64, pr: f64, heated: bool) -> f64 {
 }
 
 /// Sieder–Tate turbulent: Nu = 0.027 Re^0.8 Pr^⅓ (μ/μ_s)^0.14; Re ≥ 10⁴, 0.7 ≤ Pr ≤ 16 700
-/// (Sieder & Tate 1936; Incropera Eq. 8.61 [M]).
+/// (Sieder & Tate 1936; Incropera Eq. 8.61 \[M\]).
 pub fn sieder_tate_turbulent_nusselt(re: f64, pr: f64, mu_ratio: f64) -> f64 {
     0.027 * re.powf(0.8) * pr.powf(1.0 / 3.0) * mu_ratio.powf(0.14)
 }
@@ -118,7 +118,7 @@ pub fn hausen_nusselt(gz: f64) -> f64 {
 }
 
 /// Sieder–Tate combined entry, laminar, mean over L: Nu = 1.86 (Gz)^⅓ (μ/μ_s)^0.14, valid for
-/// 0.48 < Pr < 16 700, 0.0044 < μ/μ_s < 9.75 and Gz^⅓ (μ/μ_s)^0.14 ≥ 2 (Incropera Eq. 8.58 [M]);
+/// 0.48 < Pr < 16 700, 0.0044 < μ/μ_s < 9.75 and Gz^⅓ (μ/μ_s)^0.14 ≥ 2 (Incropera Eq. 8.58 \[M\]);
 /// below that limit the fully developed tube value 3.66 governs, so the larger of the two is used.
 pub fn sieder_tate_laminar_nusselt(gz: f64, mu_ratio: f64) -> f64 {
     sieder_tate_laminar_nusselt_floor(gz, mu_ratio, NU_TUBE_LAMINAR_T)
@@ -155,7 +155,7 @@ pub enum Turbulent {
     SiederTate,
     /// Pitla, Groll & Ramadhyani (2002) for supercritical CO₂ being cooled: the mean of
     /// Gnielinski's Nu at wall and at bulk properties, times k_w/k_b (Int. J. Refrigeration
-    /// 25 (2002) 887–895 [M]).
+    /// 25 (2002) 887–895 \[M\]).
     Pitla,
 }
 
@@ -167,7 +167,7 @@ pub enum WallCorrection {
     /// Liquids: Nu × (μ_b/μ_w)^0.14 (Sieder & Tate 1936).
     Viscosity,
     /// Gases: Nu × (T_b/T_w)^0.45 when heated, × 1 when cooled (absolute temperatures;
-    /// Gnielinski's recommendation as quoted in the VDI Heat Atlas [M]).
+    /// Gnielinski's recommendation as quoted in the VDI Heat Atlas \[M\]).
     GasTemperature,
 }
 
@@ -175,7 +175,7 @@ pub enum WallCorrection {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Transition {
     /// Gnielinski's linear blend in Re between the laminar value at 2300 and the turbulent
-    /// correlation at 10⁴ (VDI Heat Atlas, 2nd ed. 2010, G1 [M]); cells in it are counted as
+    /// correlation at 10⁴ (VDI Heat Atlas, 2nd ed. 2010, G1 \[M\]); cells in it are counted as
     /// outside every correlation's range.
     #[default]
     Blend,
@@ -185,7 +185,7 @@ pub enum Transition {
 }
 
 /// Range of c̄p/cp_b and ρ_w/ρ_b within which a bulk-property turbulent correlation is
-/// counted in range (common practice [M]; see [`InternalFlow`]'s film).
+/// counted in range (common practice \[M\]; see [`InternalFlow`]'s film).
 pub const PROPERTY_RATIO_RANGE: (f64, f64) = (0.9, 1.1);
 
 /// Laminar limit of the transition blend.
@@ -195,7 +195,7 @@ pub const RE_TURBULENT: f64 = 1.0e4;
 
 /// Internal flow in tubes, annuli and plate channels: a laminar model below Re = 2300, a
 /// turbulent model above 10⁴, and between them the linear blend in Re that Gnielinski
-/// recommends (VDI Heat Atlas, 2nd ed. 2010, section G1 [M]): Nu = (1 − γ)Nu_lam(2300) +
+/// recommends (VDI Heat Atlas, 2nd ed. 2010, section G1 \[M\]): Nu = (1 − γ)Nu_lam(2300) +
 /// γ Nu_turb(10⁴), γ = (Re − 2300)/(10⁴ − 2300). The blend is continuous at both ends, so
 /// Newton never meets a jump; cells in it are reported as outside the correlations' range.
 #[derive(Debug, Clone)]
@@ -476,7 +476,7 @@ impl TubeBank {
     /// Zukauskas constants (C₁, m) for Re_max. Below 10² and above 10³: the 1972 table as
     /// reproduced in Incropera Table 7.5. Between 10² and 10³, where that table only says to
     /// use the single-cylinder result, the bank constants of Zukauskas' 1987 table (as in
-    /// Çengel, *Heat Transfer*, Table 7-2 [M]; METHODS.md §3): aligned C = 0.52, m = 0.5;
+    /// Çengel, *Heat Transfer*, Table 7-2 \[M\]; METHODS.md §3): aligned C = 0.52, m = 0.5;
     /// staggered 1.04/0.4 up to 500 and 0.71/0.5 above. Pr exponent 0.36 throughout.
     fn constants(&self, re: f64) -> (f64, f64) {
         let ratio = self.transverse_pitch_m / self.longitudinal_pitch_m;

@@ -61,13 +61,13 @@ impl LaminarConstants {
     pub const TUBE: Self = Self { nu_t: NU_TUBE_LAMINAR_T, nu_h: 48.0 / 11.0, f_re: 64.0 };
 
     /// Parallel plates, one plate heated and the other insulated: Nu_T = 4.86, Nu_H = 5.385,
-    /// f·Re = 96 (Incropera et al., Tables 8.1–8.2; Shah & London 1978 [M]).
+    /// f·Re = 96 (Incropera et al., Tables 8.1–8.2; Shah & London 1978 \[M\]).
     pub const PLATES_ONE_SIDE: Self = Self { nu_t: 4.86, nu_h: 5.385, f_re: 96.0 };
 
     /// Concentric annulus heated on its inner wall, outer wall insulated, Di/Do = `ratio`:
     /// Nu_T from [`Channel::annulus_laminar_nusselt`] (Incropera Table 8.2); Nu_H from Kays &
     /// Crawford, *Convective Heat and Mass Transfer*, Table 8-2 (after Lundberg, Reynolds &
-    /// Kays; also Shah & London) [M], interpolated linearly in Di/Do; f·Re from the exact
+    /// Kays; also Shah & London) \[M\], interpolated linearly in Di/Do; f·Re from the exact
     /// laminar annulus profile, 64(1 − κ)² / (1 + κ² − (1 − κ²)/ln(1/κ)) (White, *Viscous
     /// Fluid Flow*, §3-3; Shah & London), 64 at κ → 0 and 96 at κ → 1.
     pub fn annulus(ratio: f64) -> Self {
