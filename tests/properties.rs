@@ -168,7 +168,20 @@ proptest! {
         };
         match hxgrid::scenario::run("random", &ex, &inputs, &settings, None, &mut hxgrid::solve::SilentObserver) {
             Ok(report) => {
-                prop_assert!(report.energy_closure_relative < 1e-6 || report.hot_heat_J.abs() < 1e-6, "closure {}", report.energy_closure_relative);
+                // Closure is exact up to the Newton tolerance of the implicit steps: 10⁻⁶ of the
+                // heat, or, where the heat is tiny against what the exchanger stores (a stream
+                // with 10⁴ times the other's flow, stopping), 10⁻³ tolerance_K of its whole heat
+                // capacity, the energy resolution of the time integration itself.
+                let capacity = |s: &hxgrid::model::Stream| {
+                    s.fluid.props(s.inlet_c).density * s.fluid.props(s.inlet_c).cp * s.channel.volume_per_length_m2.unwrap_or(0.0)
+                };
+                let resolution = 1e-3 * settings.atol_k * ex.length_m * (capacity(&ex.hot) + capacity(&ex.cold) + settings.wall_heat_capacity_j_mk);
+                prop_assert!(
+                    report.energy_closure_relative < 1e-6 || report.energy_closure_J.abs() < resolution || report.hot_heat_J.abs() < 1e-6,
+                    "closure {} ({} J, resolution {resolution} J)",
+                    report.energy_closure_relative,
+                    report.energy_closure_J
+                );
                 for s in &report.samples {
                     let row = serde_json::to_value(s).unwrap();
                     prop_assert!(row.as_object().unwrap().values().all(|v| v.as_f64().is_some_and(f64::is_finite)), "non-finite sample {row}");

@@ -1,13 +1,22 @@
 //! Case input: the TOML mirror ([`CaseFile`]), validation into a typed [`Case`] that
 //! reports every problem at once, and building the [`Exchanger`](crate::model::Exchanger).
 
+mod build;
 mod file;
+mod geometry_input;
+mod problem;
 pub mod read;
 mod schema;
+mod spec;
+mod stream_input;
+mod transient_input;
 mod validate;
 
 pub use file::*;
-pub use validate::{load, parse_in, parse_str, Case, CaseError, FilmSpec, Geometry, Problem, Storage, StreamSpec, TransientSpec};
+pub use problem::{CaseError, Problem};
+pub use spec::{Case, FilmSpec, Geometry, Storage, StreamSpec, TransientSpec, TubeSide};
+pub use transient_input::{SNAPSHOTS_MAX, SNAPSHOT_MAX_ROWS, TIMESERIES_MAX_ROWS};
+pub use validate::{check_name, load, parse_in, parse_str, velocity_warnings, NAME_MAX};
 
 /// A commented starter case (an invented scenario) written by `hxgrid new`.
 pub const STARTER: &str = include_str!("starter.toml");

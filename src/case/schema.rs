@@ -3,7 +3,7 @@
 //! type, each with its line number, all reported in one pass. Values inside the right
 //! shape are checked afterwards by validation.
 
-use super::validate::{closest, Problem};
+use super::problem::{closest, Problem};
 use toml_edit::{ImDocument, Item, TableLike, Value};
 
 /// What a key holds, read from the case file's JSON Schema ([`super::json_schema`]).
