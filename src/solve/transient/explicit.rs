@@ -1,0 +1,89 @@
+//! The explicit integrator: Dormand–Prince 5(4) from `ode_solvers`, with enthalpies scaled
+//! into kelvin-like units so one absolute tolerance fits every state.
+
+use super::model::*;
+use super::*;
+use nalgebra::DVector;
+
+/// ode_solvers wrapper around the model. Its error control uses one absolute tolerance for
+/// every component, so the fluid enthalpies are scaled by a reference cp per stream into
+/// kelvin-like units, the same units as the wall temperatures.
+pub(super) struct OdeSystem<'a, 'b> {
+    pub(super) model: &'b Model<'a>,
+    /// 1/cp_ref of the hot and cold fluids, kg·K/J.
+    pub(super) scale: [f64; 2],
+}
+
+impl OdeSystem<'_, '_> {
+    pub(super) fn unscale(&self, z: &DVector<f64>) -> DVector<f64> {
+        let n = self.model.n;
+        let mut y = z.clone();
+        for i in 0..n {
+            y[i] /= self.scale[0];
+            y[n + i] /= self.scale[1];
+        }
+        y
+    }
+    pub(super) fn scale_state(&self, y: &DVector<f64>) -> DVector<f64> {
+        let n = self.model.n;
+        let mut z = y.clone();
+        for i in 0..n {
+            z[i] *= self.scale[0];
+            z[n + i] *= self.scale[1];
+        }
+        z
+    }
+}
+
+impl ode_solvers::System<f64, DVector<f64>> for OdeSystem<'_, '_> {
+    fn system(&self, t: f64, z: &DVector<f64>, dz: &mut DVector<f64>) {
+        let n = self.model.n;
+        self.model.derivative(t, &self.unscale(z), dz);
+        for i in 0..n {
+            dz[i] *= self.scale[0];
+            dz[n + i] *= self.scale[1];
+        }
+    }
+}
+
+pub(super) fn explicit_segment(
+    model: &Model,
+    t0: f64,
+    t1: f64,
+    y0: &DVector<f64>,
+    settings: &TransientSettings,
+) -> Result<(DVector<f64>, ode_solvers::dop_shared::Stats), TransientError> {
+    // Sparse output (the state at every accepted step; the last is the segment end): the
+    // dense-output mode did not give us the segment end state in this use.
+    let scale = [1.0 / model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp, 1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp];
+    let system = OdeSystem { model, scale };
+    let z0 = system.scale_state(y0);
+    let mut stepper = ode_solvers::Dopri5::from_param(
+        OdeSystem { model, scale },
+        t0,
+        t1,
+        t1 - t0,
+        z0,
+        settings.rtol,
+        settings.atol_k,
+        0.9,
+        0.04,
+        0.2,
+        10.0,
+        t1 - t0,
+        0.0,
+        settings.max_steps as u32,
+        1000,
+        ode_solvers::dop_shared::OutputType::Sparse,
+    );
+    let stats = stepper.integrate().map_err(|e| TransientError::Stalled { integrator: "explicit", time_s: t0, reason: format!("{e:?}") })?;
+    let y = stepper.y_out().last().map(|z| system.unscale(z)).ok_or_else(|| TransientError::Stalled {
+        integrator: "explicit",
+        time_s: t0,
+        reason: "no output".into(),
+    })?;
+    if !y.iter().all(|v| v.is_finite()) {
+        return Err(TransientError::Stalled { integrator: "explicit", time_s: t0, reason: "non-finite state (unstable step)".into() });
+    }
+    Ok((y, stats))
+}

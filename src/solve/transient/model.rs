@@ -1,0 +1,111 @@
+//! The transient model: fixed storage per cell, and the steady residuals as rates.
+
+use super::signal::*;
+use super::*;
+use crate::model::{Exchanger, Grid};
+use crate::solve::steady::check_faces_in_range;
+use crate::solve::SolveError;
+use nalgebra::{DVector, Vector3};
+
+/// Everything fixed during a run: grid, storage, and index helpers.
+pub(super) struct Model<'a> {
+    pub(super) ex: &'a Exchanger,
+    pub(super) inputs: &'a Inputs,
+    pub(super) n: usize,
+    pub(super) dx: f64,
+    /// Fluid mass per cell, kg.
+    pub(super) mass: [Vec<f64>; 2],
+    /// Wall heat capacity per cell, J/K.
+    pub(super) wall_capacity: f64,
+}
+
+/// State layout: h_hot[0..n], h_cold[0..n], T_wall[0..n], net inflow, hot heat.
+impl Model<'_> {
+    pub(super) fn len(&self) -> usize {
+        3 * self.n + 2
+    }
+
+    pub(super) fn temperatures(&self, y: &DVector<f64>) -> Vec<Vector3<f64>> {
+        let n = self.n;
+        let (hf, cf) = (&self.ex.hot.fluid, &self.ex.cold.fluid);
+        (0..n).map(|i| Vector3::new(hf.temperature_from_enthalpy(y[i]), cf.temperature_from_enthalpy(y[n + i]), y[2 * n + i])).collect()
+    }
+
+    pub(super) fn grid(&self, e: &Exchanger) -> Grid {
+        Grid { arrangement: e.arrangement, n: self.n, scheme: e.scheme, hot_in_c: e.hot.inlet_c, cold_in_c: e.cold.inlet_c }
+    }
+
+    /// Storage-form right-hand side: per cell [hot, −cold, wall] residuals (W) and the two
+    /// inflow rates (W).
+    pub(super) fn rates(&self, t: f64, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) -> (f64, f64) {
+        let e = self.inputs.apply(self.ex, t);
+        let g = self.grid(&e);
+        for (i, ri) in r.iter_mut().enumerate() {
+            let res = e.cell(self.dx, &g.cell_temps(x, i)).balance.steady_residual();
+            *ri = Vector3::new(res[0], -res[1], res[2]);
+        }
+        self.inflows(&e, &g, x)
+    }
+
+    /// (net enthalpy inflow of both streams, hot duty), W.
+    pub(super) fn inflows(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>]) -> (f64, f64) {
+        let (hot_faces, cold_faces) = g.faces(x);
+        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
+        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
+        let hot = e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out));
+        let cold = e.cold.mass_flow_kg_s * (cf.enthalpy(e.cold.inlet_c) - cf.enthalpy(cold_out));
+        (hot + cold, hot)
+    }
+
+    pub(super) fn derivative(&self, t: f64, y: &DVector<f64>, dy: &mut DVector<f64>) {
+        let n = self.n;
+        let x = self.temperatures(y);
+        let mut r = vec![Vector3::zeros(); n];
+        let (net, hot) = self.rates(t, &x, &mut r);
+        for i in 0..n {
+            dy[i] = r[i][0] / self.mass[0][i];
+            dy[n + i] = r[i][1] / self.mass[1][i];
+            dy[2 * n + i] = r[i][2] / self.wall_capacity;
+        }
+        dy[3 * n] = net;
+        dy[3 * n + 1] = hot;
+    }
+
+    pub(super) fn sample(&self, t: f64, y: &DVector<f64>) -> (Sample, Snapshot) {
+        let n = self.n;
+        let x = self.temperatures(y);
+        let e = self.inputs.apply(self.ex, t);
+        let g = self.grid(&e);
+        let (hot_faces, cold_faces) = g.faces(&x);
+        let mut dy = DVector::zeros(self.len());
+        self.derivative(t, y, &mut dy);
+        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
+        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
+        let fluid_energy: f64 = (0..n).map(|i| self.mass[0][i] * y[i] + self.mass[1][i] * y[n + i]).sum();
+        let wall: Vec<f64> = (0..n).map(|i| y[2 * n + i]).collect();
+        let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
+        let sample = Sample {
+            time_s: t,
+            hot_inlet_C: e.hot.inlet_c,
+            cold_inlet_C: e.cold.inlet_c,
+            hot_flow_kg_s: e.hot.mass_flow_kg_s,
+            cold_flow_kg_s: e.cold.mass_flow_kg_s,
+            hot_outlet_C: hot_out,
+            cold_outlet_C: cold_out,
+            hot_duty_W: e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out)),
+            cold_duty_W: e.cold.mass_flow_kg_s * (cf.enthalpy(cold_out) - cf.enthalpy(e.cold.inlet_c)),
+            fluid_energy_J: fluid_energy,
+            wall_energy_J: wall.iter().map(|t| self.wall_capacity * t).sum(),
+            max_wall_C: wall.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            max_wall_rate_K_s: max_rate,
+            net_inflow_J: y[3 * n],
+            hot_heat_J: y[3 * n + 1],
+        };
+        (sample, Snapshot { time_s: t, hot_faces_c: hot_faces, cold_faces_c: cold_faces, wall_c: wall })
+    }
+
+    /// Check every face against its fluid's range.
+    pub(super) fn check(&self, t: f64, snap: &Snapshot) -> Result<(), SolveError> {
+        check_faces_in_range(self.ex, &snap.hot_faces_c, &snap.cold_faces_c, self.dx, Some(t))
+    }
+}
