@@ -4,6 +4,9 @@
 
 mod banded;
 mod blocktri;
+mod checks;
+mod error;
+mod jacobian;
 mod steady;
 pub mod transient;
 
