@@ -4,9 +4,12 @@
 //! Owns: the local film coefficient from local properties and flow, and the series
 //! resistances per unit length. Must not: know about cells, solvers or files.
 
+mod bank;
+mod compact;
 pub mod film;
 pub mod fin;
 pub mod friction;
+mod internal;
 mod wall;
 
 pub use film::{
