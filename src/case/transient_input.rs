@@ -218,12 +218,10 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
             output_interval_s: interval,
             integrator,
             atol_k: tolerance,
-            rtol: 1e-6,
-            max_steps: 5_000_000,
             initial,
-            wall_heat_capacity_j_mk: 0.0,
-            shell: None,
             snapshot_times_s: snapshots,
+            // Relative tolerance, step limit, heat capacities: the documented defaults.
+            ..TransientSettings::default()
         },
         wall_volumetric_heat_capacity: rho * cw,
         fin_volumetric_heat_capacity: fin_rho_c,

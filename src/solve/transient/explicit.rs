@@ -58,22 +58,23 @@ pub(super) fn explicit_segment(
     let scale = [1.0 / model.ex.hot.fluid.props(model.ex.hot.inlet_c).cp, 1.0 / model.ex.cold.fluid.props(model.ex.cold.inlet_c).cp];
     let system = OdeSystem { model, scale };
     let z0 = system.scale_state(y0);
+    let c = DopriConfig { rtol: settings.rtol, atol: settings.atol_k, max_steps: settings.max_steps as u32, ..DopriConfig::default() };
     let mut stepper = ode_solvers::Dopri5::from_param(
         OdeSystem { model, scale },
         t0,
         t1,
         t1 - t0,
         z0,
-        settings.rtol,
-        settings.atol_k,
-        0.9,
-        0.04,
-        0.2,
-        10.0,
-        t1 - t0,
-        0.0,
-        settings.max_steps as u32,
-        1000,
+        c.rtol,
+        c.atol,
+        c.safety,
+        c.beta,
+        c.fac_min,
+        c.fac_max,
+        t1 - t0, // largest step: the segment
+        0.0,     // initial step: chosen by the integrator
+        c.max_steps,
+        c.stiffness_test_steps,
         ode_solvers::dop_shared::OutputType::Sparse,
     );
     let stats = stepper.integrate().map_err(|e| TransientError::Stalled { integrator: "explicit", time_s: t0, reason: format!("{e:?}") })?;
@@ -86,4 +87,31 @@ pub(super) fn explicit_segment(
         return Err(TransientError::Stalled { integrator: "explicit", time_s: t0, reason: "non-finite state (unstable step)".into() });
     }
     Ok((y, stats))
+}
+
+/// The knobs of the Dormand–Prince integrator, named (its constructor takes them as 15
+/// positional arguments). Defaults are Hairer's recommended values as used by `ode_solvers`.
+#[derive(Debug, Clone, Copy)]
+pub(super) struct DopriConfig {
+    /// Relative tolerance.
+    pub(super) rtol: f64,
+    /// Absolute tolerance (kelvin-like units after scaling).
+    pub(super) atol: f64,
+    /// Safety factor of the step-size controller.
+    pub(super) safety: f64,
+    /// Step-size stabilisation exponent (Lund's β).
+    pub(super) beta: f64,
+    /// Smallest and largest step-size change per step (as the constructor's fac1, fac2).
+    pub(super) fac_min: f64,
+    pub(super) fac_max: f64,
+    /// Step limit.
+    pub(super) max_steps: u32,
+    /// Steps between stiffness tests.
+    pub(super) stiffness_test_steps: u32,
+}
+
+impl Default for DopriConfig {
+    fn default() -> Self {
+        Self { rtol: 1e-6, atol: 1e-4, safety: 0.9, beta: 0.04, fac_min: 0.2, fac_max: 10.0, max_steps: 5_000_000, stiffness_test_steps: 1000 }
+    }
 }

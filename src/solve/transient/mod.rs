@@ -68,7 +68,7 @@ pub struct TransientSettings {
     pub atol_k: f64,
     /// Relative tolerance (default 1e-6).
     pub rtol: f64,
-    /// Step limit for the whole run (default 10⁶).
+    /// Step limit for the whole run (default 5·10⁶).
     pub max_steps: usize,
     /// Initial state.
     pub initial: Initial,
@@ -91,7 +91,7 @@ impl Default for TransientSettings {
             integrator: Integrator::Implicit,
             atol_k: 1e-4,
             rtol: 1e-6,
-            max_steps: 1_000_000,
+            max_steps: 5_000_000,
             initial: Initial::Steady,
             wall_heat_capacity_j_mk: 0.0,
             shell: None,
