@@ -9,6 +9,7 @@
 //! Size: above [`PROFILE_ROWS`] cells the profile CSV holds every k-th cell (first and last
 //! always) unless `all_cells` is set; plots draw at most `svg::PLOT_POINTS` (4 000) points a curve.
 
+pub mod console;
 mod csv;
 mod finite;
 pub mod folder;

@@ -1,0 +1,119 @@
+//! The summaries printed on the terminal after a run, as text (the binary prints them).
+
+use crate::results::SteadyReport;
+use crate::scenario::TransientReport;
+use std::fmt::Write as _;
+
+/// The transient summary table as printed after `hxgrid simulate`.
+pub fn transient(r: &TransientReport) -> String {
+    let mut out = String::new();
+    let _ = writeln!(out, "\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
+    let _ = writeln!(out, "  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
+    if let Some(stop) = &r.stop {
+        let _ = writeln!(
+            out,
+            "  STOPPED EARLY at t = {} s ({} stream at x = {} m): results end there",
+            crate::text::num(stop.time_s),
+            stop.stream,
+            crate::text::num(stop.position_m)
+        );
+    }
+    let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
+    let _ =
+        writeln!(out, "\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
+    for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {
+        let _ = writeln!(
+            out,
+            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16}",
+            name,
+            o.initial_C,
+            o.final_C,
+            f(o.settling_63_s),
+            f(o.settling_95_s),
+            f(o.settling_99_s),
+            o.overshoot_percent,
+            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (none)".into())
+        );
+    }
+    let _ = writeln!(out, "\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
+    let _ = writeln!(out, "energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
+    let _ = writeln!(
+        out,
+        "steps {} (rejected {}), Jacobians {}, right-hand sides {}",
+        r.stats.steps, r.stats.rejected_steps, r.stats.jacobian_evaluations, r.stats.rhs_evaluations
+    );
+    let _ = writeln!(out, "\nCaution: {}", r.caution);
+    out.trim_end().to_string()
+}
+
+/// The steady summary table as printed after `hxgrid run`: grid beside lumped, grid error,
+/// grid study, warnings and the caution.
+pub fn steady(r: &SteadyReport) -> String {
+    let mut out = String::new();
+    let l = &r.lumped;
+    let _ = writeln!(out, "\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+    let _ = writeln!(out, "  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
+    let _ = writeln!(out, "\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
+    use crate::text::fixed as f;
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}{:>11}%", "duty (W)", f(r.duty_W, 1), f(l.duty_w, 1), f(r.grid_vs_lumped.duty_difference_percent, 2));
+    let _ = writeln!(
+        out,
+        "{:<22}{:>16}{:>16}{:>10} K",
+        "hot outlet (°C)",
+        f(r.hot_outlet_C, 3),
+        f(l.hot_outlet_c, 3),
+        f(r.grid_vs_lumped.hot_outlet_difference_K, 3)
+    );
+    let _ = writeln!(
+        out,
+        "{:<22}{:>16}{:>16}{:>10} K",
+        "cold outlet (°C)",
+        f(r.cold_outlet_C, 3),
+        f(l.cold_outlet_c, 3),
+        f(r.grid_vs_lumped.cold_outlet_difference_K, 3)
+    );
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}{:>11}%", "UA (W/K)", f(r.UA_W_K, 2), f(l.ua_w_k, 2), f(r.grid_vs_lumped.ua_difference_percent, 2));
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}", "effectiveness", f(r.effectiveness, 5), f(l.effectiveness, 5));
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}", "NTU", f(r.ntu, 5), f(l.ntu, 5));
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}", "capacity ratio", f(r.capacity_ratio, 5), f(l.capacity_ratio, 5));
+    if let (Some(a), Some(b)) = (r.lmtd_K, l.lmtd_k) {
+        let _ = writeln!(out, "{:<22}{:>16}{:>16}", "LMTD (K)", f(a, 4), f(b, 4));
+    }
+    let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
+    let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
+    let _ = writeln!(out, "\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
+    if let Some(g) = &r.grid_error_estimate {
+        let _ = writeln!(
+            out,
+            "estimated grid error (vs {} cells, Richardson order {}): duty {:.3e} W, hot outlet {:.2e} K, cold outlet {:.2e} K",
+            g.coarse_cells, g.order, g.estimated_error.duty_w, g.estimated_error.hot_outlet_c, g.estimated_error.cold_outlet_c
+        );
+    }
+    if let Some(s) = &r.grid_study {
+        let _ = writeln!(out, "\ngrid study:");
+        let _ = writeln!(out, "{:>10}{:>18}{:>16}{:>16}", "cells", "duty (W)", "hot out (°C)", "cold out (°C)");
+        for lv in &s.levels {
+            let _ = writeln!(out, "{:>10}{:>18.6}{:>16.8}{:>16.8}", lv.cells, lv.values.duty_w, lv.values.hot_outlet_c, lv.values.cold_outlet_c);
+        }
+        let fmt = |o: Option<f64>| o.map(|p| format!("{p:.3}")).unwrap_or_else(|| "n/a (round-off)".into());
+        let _ = writeln!(
+            out,
+            "observed order: duty {}, hot outlet {}, cold outlet {} (scheme: {})",
+            fmt(s.observed_order.duty),
+            fmt(s.observed_order.hot_outlet),
+            fmt(s.observed_order.cold_outlet),
+            s.formal_order
+        );
+        let _ = writeln!(
+            out,
+            "Richardson extrapolation: duty {:.6} W, hot outlet {:.8} °C, cold outlet {:.8} °C",
+            s.extrapolated.duty_w, s.extrapolated.hot_outlet_c, s.extrapolated.cold_outlet_c
+        );
+    }
+    for w in &r.warnings {
+        let _ = writeln!(out, "warning: {w}");
+    }
+    let _ = writeln!(out, "\nCaution: {}", r.caution);
+    out.trim_end().to_string()
+}
