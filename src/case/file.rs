@@ -97,14 +97,6 @@ pub struct TransientFile {
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
 #[serde(rename_all = "snake_case")]
-pub enum GeometryKind {
-    DoublePipe,
-    PlaneWall,
-    TubeBank,
-}
-
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
-#[serde(rename_all = "snake_case")]
 pub enum AnnulusDiameter {
     Hydraulic,
     Equivalent,
@@ -124,33 +116,47 @@ pub enum SideName {
     Cold,
 }
 
+/// The `[geometry]` table: `kind` selects the variant, and each variant lists exactly the
+/// keys that kind takes (so a key of another kind is an unknown key).
 #[derive(Debug, Clone, Deserialize, JsonSchema)]
-#[serde(deny_unknown_fields)]
-pub struct GeometryFile {
-    pub kind: GeometryKind,
-    pub wall_conductivity_W_mK: f64,
-    // double_pipe
-    pub tube_inner_diameter_m: Option<f64>,
-    pub tube_outer_diameter_m: Option<f64>,
-    pub shell_inner_diameter_m: Option<f64>,
-    pub tube_side: Option<SideName>,
-    /// Annulus: diameter in Nu = hD/k, "hydraulic" (D₂ − D₁, default) or "equivalent" ((D₂² − D₁²)/D₁).
-    pub annulus_heat_diameter: Option<AnnulusDiameter>,
-    // tube_bank (tube diameters and tube_side shared with double_pipe)
-    pub layout: Option<LayoutName>,
-    pub transverse_pitch_m: Option<f64>,
-    pub longitudinal_pitch_m: Option<f64>,
-    pub rows: Option<i64>,
-    pub tubes_per_row: Option<i64>,
-    pub tube_length_m: Option<f64>,
-    pub tube_circuits: Option<i64>,
-    // plane_wall
-    pub area_per_length_m2_m: Option<f64>,
-    pub wall_thickness_m: Option<f64>,
-    pub hot_flow_area_m2: Option<f64>,
-    pub hot_hydraulic_diameter_m: Option<f64>,
-    pub cold_flow_area_m2: Option<f64>,
-    pub cold_hydraulic_diameter_m: Option<f64>,
+#[serde(tag = "kind", rename_all = "snake_case", deny_unknown_fields)]
+pub enum GeometryFile {
+    /// An inner tube in an outer pipe: one stream in the tube, the other in the annulus.
+    DoublePipe {
+        wall_conductivity_W_mK: f64,
+        tube_inner_diameter_m: f64,
+        tube_outer_diameter_m: f64,
+        shell_inner_diameter_m: f64,
+        tube_side: SideName,
+        /// Annulus: "hydraulic" (D₂ − D₁, default) or "equivalent" (Kern's (D₂² − D₁²)/D₁).
+        annulus_heat_diameter: Option<AnnulusDiameter>,
+    },
+    /// A generic wall with given area per length; each stream's passage given by its flow
+    /// area and hydraulic diameter (needed when its film is computed from the flow).
+    PlaneWall {
+        wall_conductivity_W_mK: f64,
+        area_per_length_m2_m: f64,
+        wall_thickness_m: f64,
+        hot_flow_area_m2: Option<f64>,
+        hot_hydraulic_diameter_m: Option<f64>,
+        cold_flow_area_m2: Option<f64>,
+        cold_hydraulic_diameter_m: Option<f64>,
+    },
+    /// A bank of tubes crossed by the outside stream, the tube-side stream in circuits.
+    TubeBank {
+        wall_conductivity_W_mK: f64,
+        tube_inner_diameter_m: f64,
+        tube_outer_diameter_m: f64,
+        tube_side: SideName,
+        layout: LayoutName,
+        transverse_pitch_m: f64,
+        longitudinal_pitch_m: f64,
+        rows: i64,
+        tubes_per_row: i64,
+        tube_length_m: f64,
+        /// Parallel tube-side circuits (default: tubes per row).
+        tube_circuits: Option<i64>,
+    },
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]

@@ -7,73 +7,16 @@ use crate::text::num;
 use crate::transfer::{Layout, TubeBank};
 use std::path::Path;
 
-/// Keys of `[geometry]` that belong to each kind (anything else given is an error).
-pub(super) fn geometry_keys(g: &GeometryFile) -> Vec<(&'static str, bool)> {
-    vec![
-        ("tube_inner_diameter_m", g.tube_inner_diameter_m.is_some()),
-        ("tube_outer_diameter_m", g.tube_outer_diameter_m.is_some()),
-        ("shell_inner_diameter_m", g.shell_inner_diameter_m.is_some()),
-        ("tube_side", g.tube_side.is_some()),
-        ("annulus_heat_diameter", g.annulus_heat_diameter.is_some()),
-        ("layout", g.layout.is_some()),
-        ("transverse_pitch_m", g.transverse_pitch_m.is_some()),
-        ("longitudinal_pitch_m", g.longitudinal_pitch_m.is_some()),
-        ("rows", g.rows.is_some()),
-        ("tubes_per_row", g.tubes_per_row.is_some()),
-        ("tube_length_m", g.tube_length_m.is_some()),
-        ("tube_circuits", g.tube_circuits.is_some()),
-        ("area_per_length_m2_m", g.area_per_length_m2_m.is_some()),
-        ("wall_thickness_m", g.wall_thickness_m.is_some()),
-        ("hot_flow_area_m2", g.hot_flow_area_m2.is_some()),
-        ("hot_hydraulic_diameter_m", g.hot_hydraulic_diameter_m.is_some()),
-        ("cold_flow_area_m2", g.cold_flow_area_m2.is_some()),
-        ("cold_hydraulic_diameter_m", g.cold_hydraulic_diameter_m.is_some()),
-    ]
-}
-
+/// Validate `[geometry]`. Which keys a kind takes, and which it needs, is the type
+/// ([`GeometryFile`]); the shape check has reported those already, so only values remain.
 pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
-    let g = &f.geometry;
-    let k = c.positive("geometry.wall_conductivity_W_mK", g.wall_conductivity_W_mK, "W/(m·K)");
-    let (kind_name, allowed): (&str, &[&str]) = match g.kind {
-        GeometryKind::DoublePipe => {
-            ("double_pipe", &["tube_inner_diameter_m", "tube_outer_diameter_m", "shell_inner_diameter_m", "tube_side", "annulus_heat_diameter"])
-        }
-        GeometryKind::PlaneWall => (
-            "plane_wall",
-            &["area_per_length_m2_m", "wall_thickness_m", "hot_flow_area_m2", "hot_hydraulic_diameter_m", "cold_flow_area_m2", "cold_hydraulic_diameter_m"],
-        ),
-        GeometryKind::TubeBank => (
-            "tube_bank",
-            &[
-                "tube_inner_diameter_m",
-                "tube_outer_diameter_m",
-                "tube_side",
-                "layout",
-                "transverse_pitch_m",
-                "longitudinal_pitch_m",
-                "rows",
-                "tubes_per_row",
-                "tube_length_m",
-                "tube_circuits",
-            ],
-        ),
+    let side = |s: SideName| match s {
+        SideName::Hot => TubeSide::Hot,
+        SideName::Cold => TubeSide::Cold,
     };
-    for (key, given) in geometry_keys(g) {
-        if given && !allowed.contains(&key) {
-            c.fail(&format!("geometry.{key}"), format!("does not apply to kind = \"{kind_name}\": remove it (keys for this kind: {})", allowed.join(", ")));
-        }
-    }
-    let tube_side = |c: &mut Checker| match g.tube_side {
-        Some(SideName::Hot) => TubeSide::Hot,
-        Some(SideName::Cold) => TubeSide::Cold,
-        None => {
-            c.fail("geometry.tube_side", "is missing: say which stream flows in the tubes, \"hot\" or \"cold\"".into());
-            TubeSide::Hot
-        }
-    };
-    let tubes = |c: &mut Checker, why: &str| {
-        let di = c.required("geometry.tube_inner_diameter_m", g.tube_inner_diameter_m, "m", why);
-        let d_o = c.required("geometry.tube_outer_diameter_m", g.tube_outer_diameter_m, "m", why);
+    let tubes = |c: &mut Checker, di: f64, d_o: f64| {
+        let di = c.positive("geometry.tube_inner_diameter_m", di, "m");
+        let d_o = c.positive("geometry.tube_outer_diameter_m", d_o, "m");
         c.looks_like_mm("geometry.tube_inner_diameter_m", di);
         c.looks_like_mm("geometry.tube_outer_diameter_m", d_o);
         if di >= d_o {
@@ -84,24 +27,26 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
         }
         (di, d_o)
     };
-    let count = |c: &mut Checker, key: &str, v: Option<i64>, why: &str| -> usize {
-        match v {
-            Some(n) if (1..=1_000_000).contains(&n) => n as usize,
-            Some(n) => {
-                c.fail(key, format!("{n} is not valid: use a whole number from 1 to 1 000 000"));
-                1
-            }
-            None => {
-                c.fail(key, format!("is missing: give a whole number ({why})"));
-                1
-            }
+    let count = |c: &mut Checker, key: &str, n: i64| -> usize {
+        if (1..=1_000_000).contains(&n) {
+            n as usize
+        } else {
+            c.fail(key, format!("{n} is not valid: use a whole number from 1 to 1 000 000"));
+            1
         }
     };
-    match g.kind {
-        GeometryKind::DoublePipe => {
-            let why = "needed for a double pipe";
-            let (di, d_o) = tubes(c, why);
-            let ds = c.required("geometry.shell_inner_diameter_m", g.shell_inner_diameter_m, "m", why);
+    match &f.geometry {
+        GeometryFile::DoublePipe {
+            wall_conductivity_W_mK,
+            tube_inner_diameter_m,
+            tube_outer_diameter_m,
+            shell_inner_diameter_m,
+            tube_side,
+            annulus_heat_diameter,
+        } => {
+            let k = c.positive("geometry.wall_conductivity_W_mK", *wall_conductivity_W_mK, "W/(m·K)");
+            let (di, d_o) = tubes(c, *tube_inner_diameter_m, *tube_outer_diameter_m);
+            let ds = c.positive("geometry.shell_inner_diameter_m", *shell_inner_diameter_m, "m");
             c.looks_like_mm("geometry.shell_inner_diameter_m", ds);
             if d_o >= ds {
                 c.fail(
@@ -109,13 +54,21 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                     format!("{ds} m must be larger than geometry.tube_outer_diameter_m = {d_o} m (the annulus needs a gap)", ds = num(ds), d_o = num(d_o)),
                 );
             }
-            let annulus_equivalent_diameter = g.annulus_heat_diameter == Some(AnnulusDiameter::Equivalent);
-            Geometry::DoublePipe { di, d_o, ds, k, tube_side: tube_side(c), annulus_equivalent_diameter }
+            let annulus_equivalent_diameter = *annulus_heat_diameter == Some(AnnulusDiameter::Equivalent);
+            Geometry::DoublePipe { di, d_o, ds, k, tube_side: side(*tube_side), annulus_equivalent_diameter }
         }
-        GeometryKind::PlaneWall => {
-            let why = "needed for a plane wall";
-            let area = c.required("geometry.area_per_length_m2_m", g.area_per_length_m2_m, "m²/m", why);
-            let thickness = c.required("geometry.wall_thickness_m", g.wall_thickness_m, "m", why);
+        GeometryFile::PlaneWall {
+            wall_conductivity_W_mK,
+            area_per_length_m2_m,
+            wall_thickness_m,
+            hot_flow_area_m2,
+            hot_hydraulic_diameter_m,
+            cold_flow_area_m2,
+            cold_hydraulic_diameter_m,
+        } => {
+            let k = c.positive("geometry.wall_conductivity_W_mK", *wall_conductivity_W_mK, "W/(m·K)");
+            let area = c.positive("geometry.area_per_length_m2_m", *area_per_length_m2_m, "m²/m");
+            let thickness = c.positive("geometry.wall_thickness_m", *wall_thickness_m, "m");
             let mut channel = |side: &str, film: FilmName, area: Option<f64>, dh: Option<f64>| {
                 let needs = matches!(film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate | FilmName::Pitla);
                 let why = "needed when the film coefficient is computed from the flow";
@@ -136,25 +89,33 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                 }
                 (a, d)
             };
-            let hot = channel("hot", f.hot.film, g.hot_flow_area_m2, g.hot_hydraulic_diameter_m);
-            let cold = channel("cold", f.cold.film, g.cold_flow_area_m2, g.cold_hydraulic_diameter_m);
+            let hot = channel("hot", f.hot.film, *hot_flow_area_m2, *hot_hydraulic_diameter_m);
+            let cold = channel("cold", f.cold.film, *cold_flow_area_m2, *cold_hydraulic_diameter_m);
             Geometry::PlaneWall { area_per_length: area, thickness, k, hot, cold }
         }
-        GeometryKind::TubeBank => {
-            let why = "needed for a tube bank";
-            let (di, d_o) = tubes(c, why);
-            let st = c.required("geometry.transverse_pitch_m", g.transverse_pitch_m, "m", why);
-            let sl = c.required("geometry.longitudinal_pitch_m", g.longitudinal_pitch_m, "m", why);
+        GeometryFile::TubeBank {
+            wall_conductivity_W_mK,
+            tube_inner_diameter_m,
+            tube_outer_diameter_m,
+            tube_side,
+            layout,
+            transverse_pitch_m,
+            longitudinal_pitch_m,
+            rows,
+            tubes_per_row,
+            tube_length_m,
+            tube_circuits,
+        } => {
+            let k = c.positive("geometry.wall_conductivity_W_mK", *wall_conductivity_W_mK, "W/(m·K)");
+            let (di, d_o) = tubes(c, *tube_inner_diameter_m, *tube_outer_diameter_m);
+            let st = c.positive("geometry.transverse_pitch_m", *transverse_pitch_m, "m");
+            let sl = c.positive("geometry.longitudinal_pitch_m", *longitudinal_pitch_m, "m");
             if st <= d_o {
                 c.fail("geometry.transverse_pitch_m", format!("{} m must exceed the tube outer diameter {} m (tubes cannot overlap)", num(st), num(d_o)));
             }
-            let layout = match g.layout {
-                Some(LayoutName::Aligned) => Layout::Aligned,
-                Some(LayoutName::Staggered) => Layout::Staggered,
-                None => {
-                    c.fail("geometry.layout", "is missing: \"aligned\" or \"staggered\"".into());
-                    Layout::Aligned
-                }
+            let layout = match layout {
+                LayoutName::Aligned => Layout::Aligned,
+                LayoutName::Staggered => Layout::Staggered,
             };
             if layout == Layout::Aligned && sl <= d_o {
                 c.fail("geometry.longitudinal_pitch_m", format!("{} m must exceed the tube outer diameter {} m in an aligned bank", num(sl), num(d_o)));
@@ -173,12 +134,12 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                     ),
                 );
             }
-            let rows = count(c, "geometry.rows", g.rows, why);
-            let tubes_per_row = count(c, "geometry.tubes_per_row", g.tubes_per_row, why);
-            let tube_length = c.required("geometry.tube_length_m", g.tube_length_m, "m", why);
-            let circuits = match g.tube_circuits {
+            let rows = count(c, "geometry.rows", *rows);
+            let tubes_per_row = count(c, "geometry.tubes_per_row", *tubes_per_row);
+            let tube_length = c.positive("geometry.tube_length_m", *tube_length_m, "m");
+            let circuits = match tube_circuits {
                 None => tubes_per_row,
-                v => count(c, "geometry.tube_circuits", v, why),
+                Some(n) => count(c, "geometry.tube_circuits", *n),
             };
             let tubes = rows * tubes_per_row;
             if circuits > tubes {
@@ -200,7 +161,7 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                 rows,
                 frontal_area_m2: tubes_per_row as f64 * st * tube_length,
             };
-            Geometry::TubeBank { di, k, tube_side: tube_side(c), bank, tubes_per_row, tube_length, circuits }
+            Geometry::TubeBank { di, k, tube_side: side(*tube_side), bank, tubes_per_row, tube_length, circuits }
         }
     }
 }

@@ -19,6 +19,8 @@ enum Ty {
     NumList,
     /// A table (an object schema).
     Table(Value2),
+    /// A table whose `tag` key selects one of several object schemas (the geometry `kind`).
+    Tagged(String, Vec<(String, Value2)>),
 }
 
 type Value2 = serde_json::Value;
@@ -95,9 +97,30 @@ fn words(root: &Value2, s: &Value2) -> Option<Vec<String>> {
     None
 }
 
+/// A `oneOf` of object schemas each fixing one key to a different word: an internally
+/// tagged enum. Returns the tag key and (word, schema) per variant.
+fn tagged(root: &Value2, s: &Value2) -> Option<(String, Vec<(String, Value2)>)> {
+    let list = s.get("oneOf")?.as_array()?;
+    let mut tag: Option<String> = None;
+    let mut out = Vec::new();
+    for alt in list {
+        let alt = resolve(root, alt);
+        let props = alt.get("properties")?.as_object()?;
+        let (key, word) = props.iter().find_map(|(k, v)| v.get("const").and_then(|c| c.as_str()).map(|c| (k.clone(), c.to_string())))?;
+        if tag.get_or_insert_with(|| key.clone()) != &key {
+            return None;
+        }
+        out.push((word, alt.clone()));
+    }
+    Some((tag?, out))
+}
+
 /// The type of a property schema.
 fn type_of(root: &Value2, s: &Value2) -> Ty {
     let s = resolve(root, s);
+    if let Some((tag, variants)) = tagged(root, s) {
+        return Ty::Tagged(tag, variants);
+    }
     if let Some(list) = s.get("anyOf").and_then(|l| l.as_array()) {
         let real: Vec<&Value2> = list.iter().filter(|a| a.get("type") != Some(&Value2::String("null".into()))).collect();
         if real.len() == 1 {
@@ -129,7 +152,7 @@ fn fields_of(root: &Value2, object: &Value2) -> Vec<Field> {
         .map(|(key, s)| {
             let ty = type_of(root, s);
             let hint = match (&ty, unit_hint(key)) {
-                (Ty::Table(_), _) => format!("the [{key}] table"),
+                (Ty::Table(_) | Ty::Tagged(..), _) => format!("the [{key}] table"),
                 (Ty::Int, _) => "a whole number".to_string(),
                 (_, Some(u)) => u.to_string(),
                 _ => key.replace('_', " "),
@@ -194,7 +217,12 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                 shape.suggested.push(dotted(path, c));
             }
             let hint = near.map(|c| format!("did you mean {c}? ")).unwrap_or_default();
-            let here = if path.is_empty() { "at the top level".to_string() } else { format!("in [{}]", path.join(".")) };
+            // In a tagged table, say which variant's keys these are.
+            let variant = fields.iter().find_map(|f| match &f.ty {
+                Ty::Str(w) if w.len() == 1 => Some(format!(" for {} = \"{}\"", f.key, w[0])),
+                _ => None,
+            });
+            let here = if path.is_empty() { "at the top level".to_string() } else { format!("in [{}]{}", path.join("."), variant.unwrap_or_default()) };
             shape.problems.push(Problem { key: dotted(path, key), line, message: format!("unknown key; {hint}valid keys {here}: {}", valid.join(", ")) });
             let mut p = path.clone();
             p.push(key.to_string());
@@ -250,6 +278,42 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                 }
             }
             (Ty::NumList, _) => wrong(&format!("a list of numbers ({})", field.hint)),
+            (Ty::Tagged(tag, variants), item) => match item.as_table_like() {
+                Some(t) => {
+                    let names: Vec<String> = variants.iter().map(|(w, _)| w.clone()).collect();
+                    let quoted = names.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ");
+                    let header = item.span().map(|s| line_of(text, s.start)).or(line);
+                    let mut here = path.clone();
+                    here.push(key.to_string());
+                    match t.get(tag) {
+                        None => shape.problems.push(Problem {
+                            key: format!("{}.{tag}", dotted(path, key)),
+                            line: header,
+                            message: format!("is missing: give the {key} {tag}, one of {quoted}"),
+                        }),
+                        Some(v) => match v.as_str().and_then(|w| variants.iter().find(|(name, _)| name == w)) {
+                            Some((_, schema)) => {
+                                path.push(key.to_string());
+                                walk(text, root, t, path, &fields_of(root, schema), header, shape);
+                                path.pop();
+                            }
+                            None => {
+                                let given = v.as_str().map(|w| crate::text::quote(w, 40)).unwrap_or_else(|| "a value that is not text".into());
+                                let hint = v.as_str().and_then(|w| closest(w, &names)).map(|c| format!(" Did you mean \"{c}\"?")).unwrap_or_default();
+                                let tag_line = t.key(tag).and_then(|k| k.span()).map(|s| line_of(text, s.start)).or(header);
+                                shape.problems.push(Problem {
+                                    key: format!("{}.{tag}", dotted(path, key)),
+                                    line: tag_line,
+                                    message: format!("{given} is not valid for the {key} {tag}.{hint} Valid: {quoted}"),
+                                });
+                                here.push(tag.clone());
+                                shape.bad_words.push((here, names[0].clone()));
+                            }
+                        },
+                    }
+                }
+                None => wrong(&format!("a table [{}]", dotted(path, key))),
+            },
             (Ty::Table(sub), item) => match item.as_table_like() {
                 Some(t) => {
                     path.push(key.to_string());
@@ -263,7 +327,7 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
     }
     for field in fields.iter().filter(|f| f.required && !table.contains_key(&f.key) && !suggested.contains(&f.key)) {
         let what = match &field.ty {
-            Ty::Table(_) => format!("is missing: add {}", field.hint),
+            Ty::Table(_) | Ty::Tagged(..) => format!("is missing: add {}", field.hint),
             Ty::Str(words) if !words.is_empty() => {
                 format!("is missing: give the {}, one of {}", field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "))
             }
