@@ -35,54 +35,75 @@ impl KeyQuantities {
     }
 }
 
-/// Local values at one cell centre.
+/// Local values at one cell centre: one row of profiles.csv, whose columns are these
+/// fields' serialised names, in this order.
 #[derive(Debug, Clone, Serialize)]
 pub struct ProfileRow {
     /// Cell centre, m.
     pub x_m: f64,
     /// Hot bulk temperature, °C.
+    #[serde(rename = "hot_C")]
     pub hot_c: f64,
     /// Cold bulk temperature, °C.
+    #[serde(rename = "cold_C")]
     pub cold_c: f64,
     /// Wall mid-thickness temperature, °C.
+    #[serde(rename = "wall_C")]
     pub wall_c: f64,
     /// Heat rate per metre of length (hot → wall), W/m.
+    #[serde(rename = "heat_rate_per_length_W_m")]
     pub heat_rate_per_length_w_m: f64,
     /// Heat flux on the reference area, W/m².
+    #[serde(rename = "heat_flux_W_m2")]
     pub heat_flux_w_m2: f64,
     /// Local overall coefficient on the reference area, W/(m²·K).
+    #[serde(rename = "U_W_m2K")]
     pub u_w_m2k: f64,
     /// Hot film coefficient, W/(m²·K).
+    #[serde(rename = "h_hot_W_m2K")]
     pub h_hot_w_m2k: f64,
     /// Cold film coefficient, W/(m²·K).
+    #[serde(rename = "h_cold_W_m2K")]
     pub h_cold_w_m2k: f64,
     /// Hot Reynolds number (None without flow geometry).
+    #[serde(rename = "Re_hot")]
     pub re_hot: Option<f64>,
     /// Cold Reynolds number.
+    #[serde(rename = "Re_cold")]
     pub re_cold: Option<f64>,
     /// Hot Prandtl number.
+    #[serde(rename = "Pr_hot")]
     pub pr_hot: f64,
     /// Cold Prandtl number.
+    #[serde(rename = "Pr_cold")]
     pub pr_cold: f64,
     /// Hot viscosity, Pa·s.
+    #[serde(rename = "mu_hot_Pa_s")]
     pub mu_hot_pa_s: f64,
     /// Cold viscosity, Pa·s.
+    #[serde(rename = "mu_cold_Pa_s")]
     pub mu_cold_pa_s: f64,
     /// Hot specific heat, J/(kg·K).
+    #[serde(rename = "cp_hot_J_kgK")]
     pub cp_hot_j_kgk: f64,
     /// Cold specific heat, J/(kg·K).
+    #[serde(rename = "cp_cold_J_kgK")]
     pub cp_cold_j_kgk: f64,
     /// Hot density, kg/m³.
     pub rho_hot_kg_m3: f64,
     /// Cold density, kg/m³.
     pub rho_cold_kg_m3: f64,
     /// Hot conductivity, W/(m·K).
+    #[serde(rename = "k_hot_W_mK")]
     pub k_hot_w_mk: f64,
     /// Cold conductivity, W/(m·K).
+    #[serde(rename = "k_cold_W_mK")]
     pub k_cold_w_mk: f64,
     /// Hot pressure at the cell centre (absolute), Pa; None where no friction model applies.
+    #[serde(rename = "p_hot_Pa")]
     pub p_hot_pa: Option<f64>,
     /// Cold pressure at the cell centre (absolute), Pa.
+    #[serde(rename = "p_cold_Pa")]
     pub p_cold_pa: Option<f64>,
 }
 

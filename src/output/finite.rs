@@ -1,5 +1,7 @@
-//! A serde serializer that writes nothing and fails on the first non-finite number, naming
-//! its path (`lumped.duty_W`, `snapshots[3].hot_C[12]`).
+//! A serde serializer that writes nothing but visits every number (and every absent
+//! optional number) with its path: the first non-finite number is found by name
+//! (`lumped.duty_W`, `snapshots[3].hot_C[12]`), and CSV rows are written from their own
+//! type's field names and values (see `csv.rs`), so a column list is never kept by hand.
 //!
 //! Why a serializer: serde_json writes NaN and ±inf as `null`, the same as a missing
 //! optional value, so checking the JSON afterwards cannot tell them apart; and converting
@@ -10,14 +12,28 @@ use serde::ser::{self, Serialize};
 
 /// Path of the first non-finite number in `value`, or None if every number is finite.
 pub fn first_non_finite<T: Serialize + ?Sized>(value: &T, root: &str) -> Option<String> {
-    let mut walker = Walker { path: vec![root.to_string()], found: None };
-    let _ = value.serialize(&mut walker);
-    walker.found
+    let mut found = None;
+    visit(value, root, &mut |path, v| match v {
+        Some(x) if !x.is_finite() => {
+            found = Some(path.concat());
+            false
+        }
+        _ => true,
+    });
+    found
 }
 
-struct Walker {
+/// Call `f` with the path (segments like `root`, `.field`, `[3]`) and value of every
+/// number in `value`, and with None for every absent optional; `f` returns false to stop.
+/// Text, booleans and whole numbers are not visited.
+pub fn visit<T: Serialize + ?Sized>(value: &T, root: &str, f: &mut dyn FnMut(&[String], Option<f64>) -> bool) {
+    let mut walker = Walker { path: vec![root.to_string()], visit: f };
+    let _ = value.serialize(&mut walker);
+}
+
+struct Walker<'v> {
     path: Vec<String>,
-    found: Option<String>,
+    visit: &'v mut dyn FnMut(&[String], Option<f64>) -> bool,
 }
 
 /// Raised to stop the walk at the first bad number.
@@ -36,12 +52,11 @@ impl ser::Error for Stop {
     }
 }
 
-impl Walker {
-    fn number(&mut self, v: f64) -> Result<(), Stop> {
-        if v.is_finite() {
+impl Walker<'_> {
+    fn leaf(&mut self, v: Option<f64>) -> Result<(), Stop> {
+        if (self.visit)(&self.path, v) {
             Ok(())
         } else {
-            self.found = Some(self.path.concat());
             Err(Stop)
         }
     }
@@ -54,8 +69,8 @@ impl Walker {
 }
 
 /// Sequences and maps count their elements to name them.
-struct Compound<'a> {
-    walker: &'a mut Walker,
+struct Compound<'a, 'v> {
+    walker: &'a mut Walker<'v>,
     index: usize,
 }
 
@@ -65,16 +80,16 @@ macro_rules! ignore {
     };
 }
 
-impl<'a> ser::Serializer for &'a mut Walker {
+impl<'a, 'v> ser::Serializer for &'a mut Walker<'v> {
     type Ok = ();
     type Error = Stop;
-    type SerializeSeq = Compound<'a>;
-    type SerializeTuple = Compound<'a>;
-    type SerializeTupleStruct = Compound<'a>;
-    type SerializeTupleVariant = Compound<'a>;
-    type SerializeMap = Compound<'a>;
-    type SerializeStruct = Compound<'a>;
-    type SerializeStructVariant = Compound<'a>;
+    type SerializeSeq = Compound<'a, 'v>;
+    type SerializeTuple = Compound<'a, 'v>;
+    type SerializeTupleStruct = Compound<'a, 'v>;
+    type SerializeTupleVariant = Compound<'a, 'v>;
+    type SerializeMap = Compound<'a, 'v>;
+    type SerializeStruct = Compound<'a, 'v>;
+    type SerializeStructVariant = Compound<'a, 'v>;
 
     ignore!(
         serialize_bool(bool),
@@ -91,13 +106,13 @@ impl<'a> ser::Serializer for &'a mut Walker {
         serialize_bytes(&[u8]),
     );
     fn serialize_f32(self, v: f32) -> Result<(), Stop> {
-        self.number(v as f64)
+        self.leaf(Some(v as f64))
     }
     fn serialize_f64(self, v: f64) -> Result<(), Stop> {
-        self.number(v)
+        self.leaf(Some(v))
     }
     fn serialize_none(self) -> Result<(), Stop> {
-        Ok(())
+        self.leaf(None)
     }
     fn serialize_some<T: Serialize + ?Sized>(self, v: &T) -> Result<(), Stop> {
         v.serialize(self)
@@ -117,30 +132,30 @@ impl<'a> ser::Serializer for &'a mut Walker {
     fn serialize_newtype_variant<T: Serialize + ?Sized>(self, _: &'static str, _: u32, variant: &'static str, v: &T) -> Result<(), Stop> {
         self.nested(format!(".{variant}"), v)
     }
-    fn serialize_seq(self, _: Option<usize>) -> Result<Compound<'a>, Stop> {
+    fn serialize_seq(self, _: Option<usize>) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_tuple(self, _: usize) -> Result<Compound<'a>, Stop> {
+    fn serialize_tuple(self, _: usize) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_tuple_struct(self, _: &'static str, _: usize) -> Result<Compound<'a>, Stop> {
+    fn serialize_tuple_struct(self, _: &'static str, _: usize) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_tuple_variant(self, _: &'static str, _: u32, _: &'static str, _: usize) -> Result<Compound<'a>, Stop> {
+    fn serialize_tuple_variant(self, _: &'static str, _: u32, _: &'static str, _: usize) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_map(self, _: Option<usize>) -> Result<Compound<'a>, Stop> {
+    fn serialize_map(self, _: Option<usize>) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_struct(self, _: &'static str, _: usize) -> Result<Compound<'a>, Stop> {
+    fn serialize_struct(self, _: &'static str, _: usize) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
-    fn serialize_struct_variant(self, _: &'static str, _: u32, _: &'static str, _: usize) -> Result<Compound<'a>, Stop> {
+    fn serialize_struct_variant(self, _: &'static str, _: u32, _: &'static str, _: usize) -> Result<Compound<'a, 'v>, Stop> {
         Ok(Compound { walker: self, index: 0 })
     }
 }
 
-impl Compound<'_> {
+impl Compound<'_, '_> {
     fn element<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Stop> {
         let label = format!("[{}]", self.index);
         self.index += 1;
@@ -153,7 +168,7 @@ impl Compound<'_> {
 
 macro_rules! sequence {
     ($($tr:ident :: $method:ident),* $(,)?) => {
-        $(impl ser::$tr for Compound<'_> {
+        $(impl ser::$tr for Compound<'_, '_> {
             type Ok = ();
             type Error = Stop;
             fn $method<T: Serialize + ?Sized>(&mut self, v: &T) -> Result<(), Stop> {
@@ -169,7 +184,7 @@ sequence!(SerializeSeq::serialize_element, SerializeTuple::serialize_element, Se
 
 macro_rules! record {
     ($($tr:ident),* $(,)?) => {
-        $(impl ser::$tr for Compound<'_> {
+        $(impl ser::$tr for Compound<'_, '_> {
             type Ok = ();
             type Error = Stop;
             fn serialize_field<T: Serialize + ?Sized>(&mut self, key: &'static str, v: &T) -> Result<(), Stop> {
@@ -183,7 +198,7 @@ macro_rules! record {
 }
 record!(SerializeStruct, SerializeStructVariant);
 
-impl ser::SerializeMap for Compound<'_> {
+impl ser::SerializeMap for Compound<'_, '_> {
     type Ok = ();
     type Error = Stop;
     fn serialize_key<T: Serialize + ?Sized>(&mut self, _: &T) -> Result<(), Stop> {
