@@ -4,6 +4,9 @@
 use crate::lumped::LumpedResult;
 use serde::Serialize;
 
+pub mod transient;
+pub use transient::{OutletResponse, TransientReport};
+
 /// The caution every report carries.
 pub const CAUTION: &str = "Engineering estimate from a one-dimensional single-phase model. Boiling and \
 condensation are not computed (a stream that would cross saturation is stopped with an error). Heat \
