@@ -45,7 +45,7 @@ fn entries(dir: &Path) -> Vec<String> {
 /// A complete steady results folder: every file present, the summary whole JSON, the CSV
 /// with its header and as many rows as cells. Returns the cell count.
 fn complete(res: &Path) -> usize {
-    for f in hxgrid::output::STEADY_FILES.iter().chain(&[hxgrid::output::folder::MARKER]) {
+    for f in hxgrid::output::steady_file_names().iter().chain(&[hxgrid::output::folder::MARKER]) {
         assert!(res.join(f).is_file(), "{} lacks {f}: {:?}", res.display(), entries(res));
     }
     let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(res.join("summary.json")).unwrap()).expect("whole JSON");

@@ -87,8 +87,87 @@ pub fn profile_stride(cells: usize, options: WriteOptions) -> usize {
     }
 }
 
-/// Files a steady run writes, relative to its folder.
-pub const STEADY_FILES: [&str; 5] = ["summary.json", "profiles.csv", "temperatures.svg", "heat_flux.svg", "pressure.svg"];
+/// One file of a results folder: its name and its writer. Every output format sits behind
+/// this trait, and a results folder is a list of them, so adding a file touches this list
+/// only (the marker's file list and the files reported follow from it).
+pub trait FileWriter<R>: Sync {
+    /// The file's name inside the results folder.
+    fn name(&self) -> &'static str;
+    /// Write `report` into the file at `path`.
+    fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError>;
+}
+
+/// A file writer from a name and a function.
+struct Writer<R: 'static> {
+    name: &'static str,
+    write: fn(&R, &Path, WriteOptions) -> Result<(), OutputError>,
+}
+
+impl<R> FileWriter<R> for Writer<R> {
+    fn name(&self) -> &'static str {
+        self.name
+    }
+    fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError> {
+        (self.write)(report, path, options)
+    }
+}
+
+/// The files of a steady run, in the order written.
+pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
+    static FILES: [Writer<SteadyReport>; 5] = [
+        Writer {
+            name: "summary.json",
+            write: |r, path, options| {
+                let mut summary = serde_json::to_value(r).expect("report serialises");
+                summary["profile_csv_stride"] = profile_stride(r.profile.len(), options).into();
+                write_text(path, &(serde_json::to_string_pretty(&summary).expect("value serialises") + "\n"))
+            },
+        },
+        Writer { name: "profiles.csv", write: |r, path, options| write_with(path, |w| csv::profiles(r, profile_stride(r.profile.len(), options), w)) },
+        Writer { name: "temperatures.svg", write: |r, path, _| svg::temperatures(r, path) },
+        Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path) },
+        Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path) },
+    ];
+    FILES.iter().map(|w| w as &dyn FileWriter<SteadyReport>).collect()
+}
+
+/// The files of a transient run, in the order written.
+pub fn transient_files() -> Vec<&'static dyn FileWriter<TransientReport>> {
+    static FILES: [Writer<TransientReport>; 5] = [
+        Writer { name: "transient.json", write: |r, path, _| write_text(path, &(serde_json::to_string_pretty(r).expect("report serialises") + "\n")) },
+        Writer { name: "timeseries.csv", write: |r, path, _| write_with(path, |w| csv::timeseries(r, w)) },
+        Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)) },
+        Writer { name: "response.svg", write: |r, path, _| svg::response(r, path) },
+        Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path) },
+    ];
+    FILES.iter().map(|w| w as &dyn FileWriter<TransientReport>).collect()
+}
+
+/// Names of the files a steady run writes, relative to its folder.
+pub fn steady_file_names() -> Vec<&'static str> {
+    steady_files().iter().map(|f| f.name()).collect()
+}
+
+/// Names of the files a transient run writes.
+pub fn transient_file_names() -> Vec<&'static str> {
+    transient_files().iter().map(|f| f.name()).collect()
+}
+
+/// Write every file of `files` for `report` into `dir` through one staging folder.
+fn write_files<R: serde::Serialize>(
+    report: &R,
+    root: &str,
+    dir: &Path,
+    files: &[&dyn FileWriter<R>],
+    options: WriteOptions,
+) -> Result<Vec<PathBuf>, OutputError> {
+    if let Some(what) = finite::first_non_finite(report, root) {
+        return Err(OutputError::NonFinite { what });
+    }
+    let names: Vec<&str> = files.iter().map(|f| f.name()).collect();
+    folder::write_folder(dir, &names, |staging| files.iter().try_for_each(|f| f.write(report, &staging.join(f.name()), options)))?;
+    Ok(names.iter().map(|f| dir.join(f)).collect())
+}
 
 /// Check every number in the report (summary and profiles) is finite.
 pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
@@ -103,40 +182,12 @@ pub fn check_finite(report: &SteadyReport) -> Result<(), OutputError> {
 
 /// Write a steady report into `dir` (see the module header). Returns the paths written.
 pub fn write_steady(report: &SteadyReport, dir: &Path, options: WriteOptions) -> Result<Vec<PathBuf>, OutputError> {
-    if let Some(what) = finite::first_non_finite(report, "summary") {
-        return Err(OutputError::NonFinite { what });
-    }
-    let stride = profile_stride(report.profile.len(), options);
-    folder::write_folder(dir, &STEADY_FILES, |staging| {
-        let mut summary = serde_json::to_value(report).expect("report serialises");
-        summary["profile_csv_stride"] = stride.into();
-        write_text(&staging.join("summary.json"), &(serde_json::to_string_pretty(&summary).expect("value serialises") + "\n"))?;
-        write_with(&staging.join("profiles.csv"), |w| csv::profiles(report, stride, w))?;
-        svg::temperatures(report, &staging.join("temperatures.svg"))?;
-        svg::heat_flux(report, &staging.join("heat_flux.svg"))?;
-        svg::pressure(report, &staging.join("pressure.svg"))?;
-        Ok(())
-    })?;
-    Ok(STEADY_FILES.iter().map(|f| dir.join(f)).collect())
+    write_files(report, "summary", dir, &steady_files(), options)
 }
-
-/// Files a transient run writes.
-pub const TRANSIENT_FILES: [&str; 5] = ["transient.json", "timeseries.csv", "snapshots.csv", "response.svg", "snapshots.svg"];
 
 /// Write a transient report into `dir`, with the same all-or-nothing replacement.
 pub fn write_transient(report: &TransientReport, dir: &Path) -> Result<Vec<PathBuf>, OutputError> {
-    if let Some(what) = finite::first_non_finite(report, "transient") {
-        return Err(OutputError::NonFinite { what });
-    }
-    folder::write_folder(dir, &TRANSIENT_FILES, |staging| {
-        write_text(&staging.join("transient.json"), &(serde_json::to_string_pretty(report).expect("report serialises") + "\n"))?;
-        write_with(&staging.join("timeseries.csv"), |w| csv::timeseries(report, w))?;
-        write_with(&staging.join("snapshots.csv"), |w| csv::snapshots(report, w))?;
-        svg::response(report, &staging.join("response.svg"))?;
-        svg::snapshots(report, &staging.join("snapshots.svg"))?;
-        Ok(())
-    })?;
-    Ok(TRANSIENT_FILES.iter().map(|f| dir.join(f)).collect())
+    write_files(report, "transient", dir, &transient_files(), WriteOptions::default())
 }
 
 fn write_text(path: &Path, text: &str) -> Result<(), OutputError> {
