@@ -2,7 +2,7 @@
 //! grid-convergence studies: observed order and Richardson extrapolation.
 
 use crate::lumped::{self, LumpedResult};
-use crate::model::Exchanger;
+use crate::model::{Exchanger, Side};
 use crate::results::*;
 use crate::solve::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 
@@ -99,7 +99,8 @@ pub fn rate(
 /// pressure at the local temperature (the inlet-pressure range check alone missed flashing
 /// where the pressure has fallen along the way).
 fn check_local_pressure(ex: &Exchanger, r: &SteadyReport) -> Result<(), SolveError> {
-    for (stream, s, faces_pa, faces_c) in [("hot", &ex.hot, &r.hot_faces_pa, &r.hot_faces_c), ("cold", &ex.cold, &r.cold_faces_pa, &r.cold_faces_c)] {
+    for (stream, faces_pa, faces_c) in [(Side::Hot, &r.hot_faces_pa, &r.hot_faces_c), (Side::Cold, &r.cold_faces_pa, &r.cold_faces_c)] {
+        let s = ex.stream(stream);
         for (j, (&p, &t)) in faces_pa.iter().zip(faces_c.iter()).enumerate() {
             let position_m = j as f64 * r.length_m / r.cells as f64;
             if p.is_nan() || p <= 0.0 {

@@ -29,7 +29,7 @@ fn negative_absolute_pressure_is_refused() {
             1,
         );
     let e = rate(&text).unwrap_err();
-    assert!(matches!(e, hxgrid::solve::SolveError::NegativePressure { stream: "hot", .. }), "{e}");
+    assert!(matches!(e, hxgrid::solve::SolveError::NegativePressure { stream: hxgrid::model::Side::Hot, .. }), "{e}");
     let m = e.to_string();
     assert!(m.contains("hot stream's absolute pressure") && m.contains("inlet 3 bar") && m.contains("hot.pressure_bar_abs"), "{m}");
 }
@@ -42,7 +42,7 @@ fn a_liquid_below_its_saturation_pressure_flashes() {
     let e = rate(&starter(100.0, 1.0)).unwrap_err();
     match &e {
         hxgrid::solve::SolveError::Flashing { stream, pressure_pa, saturation_pa, temperature_c, .. } => {
-            assert_eq!(*stream, "hot");
+            assert_eq!(*stream, hxgrid::model::Side::Hot);
             assert!(pressure_pa < saturation_pa);
             // IAPWS-IF97 saturation pressure at the local temperature (the water module's own
             // check values are in water_properties.rs).

@@ -101,7 +101,7 @@ film_coefficient_W_m2K = 2000.0
     let err = solve_steady(&case.build(), &case.solver, &mut SilentObserver).unwrap_err();
     match &err {
         SolveError::LeftRange { stream, reason, .. } => {
-            assert_eq!(*stream, "cold");
+            assert_eq!(*stream, hxgrid::model::Side::Cold);
             assert!(reason.contains("99.97"), "{reason}");
             assert!(reason.contains("boiling"));
         }

@@ -151,7 +151,7 @@ fn a_run_that_reaches_saturation_stops_and_keeps_its_results() {
     let r = simulate(&text).unwrap();
     assert_eq!(r.status, "stopped");
     let stop = r.stop.as_ref().unwrap();
-    assert_eq!(stop.stream, "cold");
+    assert_eq!(stop.stream, hxgrid::model::Side::Cold);
     assert!(stop.time_s > 905.0 && stop.time_s < 1500.0, "{}", stop.time_s);
     assert!(stop.temperature_C > 111.0 && stop.reason.contains("outside the valid range") && stop.reason.contains("saturates at 111.35 °C"), "{stop:?}");
     let last = r.samples.last().unwrap();
@@ -186,7 +186,7 @@ fn shell_and_fin_metal_store_heat() {
     let storage = spec.storage(&case.build(), &case);
     let by_hand = std::f64::consts::PI / 4.0 * (0.0469f64.powi(2) - 0.0409f64.powi(2)) * 7900.0 * 500.0;
     assert!((storage.shell_J_mK - by_hand).abs() < 1e-9 * by_hand, "{storage:?}");
-    assert_eq!(storage.shell_with, Some("cold"));
+    assert_eq!(storage.shell_with, Some(hxgrid::model::Side::Cold));
     assert_eq!(storage.shell_outer_face, Some("adiabatic"));
     let (plain, with_shell) = (simulate(&base).unwrap(), simulate(&shelled).unwrap());
     // The shell's heat capacity changes the way up, not where it ends: the stored energy

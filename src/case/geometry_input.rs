@@ -206,7 +206,7 @@ pub(super) fn hydraulic_diameter(geometry: &Geometry, side: &str, film: &FilmSpe
     if let FilmSpec::Compact { hydraulic_diameter_m, .. } = film {
         return Some(*hydraulic_diameter_m);
     }
-    let in_tubes = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
+    let in_tubes = geometry.tube_side().map(|t| t.as_str() == side);
     match (geometry, in_tubes) {
         (Geometry::DoublePipe { di, .. }, Some(true)) | (Geometry::TubeBank { di, .. }, Some(true)) => Some(*di),
         (Geometry::DoublePipe { d_o, ds, .. }, Some(false)) => Some(ds - d_o),

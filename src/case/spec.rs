@@ -2,19 +2,14 @@
 
 use crate::fluid::library::FluidChoice;
 use crate::model::Arrangement;
+pub use crate::model::Side;
 use crate::solve::transient::{Inputs, Signal, TransientSettings};
 use crate::solve::SteadySettings;
 use crate::transfer::{CompactSurface, Fin, InternalFlow, TubeBank};
 use std::f64::consts::PI;
 
-/// Which side of the wall a stream is on, for a double pipe.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum TubeSide {
-    /// The hot stream flows in the inner tube.
-    Hot,
-    /// The cold stream flows in the inner tube.
-    Cold,
-}
+/// Which stream flows in the tubes (of a double pipe or a tube bank).
+pub type TubeSide = Side;
 
 /// Validated geometry.
 #[derive(Debug, Clone, PartialEq)]
@@ -156,14 +151,14 @@ pub struct Storage {
     /// Outer pipe (shell) of a double pipe, J/(m·K).
     pub shell_J_mK: f64,
     /// The stream whose temperature the shell follows ("hot"/"cold"), if there is a shell.
-    pub shell_with: Option<&'static str>,
+    pub shell_with: Option<Side>,
     /// The shell's outer face: adiabatic (no heat loss to ambient is modelled).
     pub shell_outer_face: Option<&'static str>,
 }
 
 impl Storage {
-    fn shell(&self) -> Option<(usize, f64)> {
-        self.shell_with.map(|s| (usize::from(s == "cold"), self.shell_J_mK))
+    fn shell(&self) -> Option<(Side, f64)> {
+        self.shell_with.map(|s| (s, self.shell_J_mK))
     }
 }
 
@@ -217,7 +212,7 @@ impl TransientSpec {
         let shell = match (&case.geometry, self.shell) {
             (Geometry::DoublePipe { ds, tube_side, .. }, Some((t, rho_c))) => {
                 let area = PI / 4.0 * ((ds + 2.0 * t).powi(2) - ds * ds);
-                Some((if *tube_side == TubeSide::Hot { "cold" } else { "hot" }, area * rho_c))
+                Some((tube_side.other(), area * rho_c))
             }
             _ => None,
         };

@@ -15,7 +15,7 @@ pub(super) const ATMOSPHERE_PA: f64 = 101_325.0;
 
 pub(super) fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &Path, geometry: &Geometry) -> FilmSpec {
     let key = |k: &str| format!("{side}.{k}");
-    let is_tube_side = geometry.tube_side().map(|t| (t == TubeSide::Hot) == (side == "hot"));
+    let is_tube_side = geometry.tube_side().map(|t| t.as_str() == side);
     let internal = matches!(s.film, FilmName::Gnielinski | FilmName::DittusBoelter | FilmName::SiederTate | FilmName::Pitla);
     if s.film_coefficient_W_m2K.is_some() && s.film != FilmName::Fixed {
         c.fail(&key("film_coefficient_W_m2K"), "is only used with film = \"fixed\": remove it, or set film = \"fixed\"".into());

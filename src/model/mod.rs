@@ -26,6 +26,83 @@ use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
 pub use scheme::{Grid, Scheme};
 use std::sync::Arc;
 
+/// One of the two streams.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Side {
+    /// The stream that gives up heat.
+    Hot,
+    /// The stream that takes it.
+    Cold,
+}
+
+impl Side {
+    /// Both sides, hot first.
+    pub const BOTH: [Side; 2] = [Side::Hot, Side::Cold];
+    /// "hot" or "cold", as in case keys and reports.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Side::Hot => "hot",
+            Side::Cold => "cold",
+        }
+    }
+    /// 0 for hot, 1 for cold: the component of a cell's unknowns (see [`scheme`]).
+    pub fn index(self) -> usize {
+        match self {
+            Side::Hot => 0,
+            Side::Cold => 1,
+        }
+    }
+    /// The other stream.
+    pub fn other(self) -> Side {
+        match self {
+            Side::Hot => Side::Cold,
+            Side::Cold => Side::Hot,
+        }
+    }
+}
+
+impl std::fmt::Display for Side {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// One value for each stream.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct PerSide<T> {
+    /// The hot stream's.
+    pub hot: T,
+    /// The cold stream's.
+    pub cold: T,
+}
+
+impl<T> std::ops::Index<Side> for PerSide<T> {
+    type Output = T;
+    fn index(&self, side: Side) -> &T {
+        match side {
+            Side::Hot => &self.hot,
+            Side::Cold => &self.cold,
+        }
+    }
+}
+
+impl<T> std::ops::IndexMut<Side> for PerSide<T> {
+    fn index_mut(&mut self, side: Side) -> &mut T {
+        match side {
+            Side::Hot => &mut self.hot,
+            Side::Cold => &mut self.cold,
+        }
+    }
+}
+
+impl<T> PerSide<T> {
+    /// Build from a function of the side.
+    pub fn from_fn(mut f: impl FnMut(Side) -> T) -> Self {
+        Self { hot: f(Side::Hot), cold: f(Side::Cold) }
+    }
+}
+
 /// Flow arrangement of the two streams.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "snake_case")]
@@ -204,6 +281,14 @@ pub type CellJacobian = [[f64; 7]; 3];
 const RESISTANCE_STEP_K: f64 = 1e-4;
 
 impl Exchanger {
+    /// One of the two streams.
+    pub fn stream(&self, side: Side) -> &Stream {
+        match side {
+            Side::Hot => &self.hot,
+            Side::Cold => &self.cold,
+        }
+    }
+
     /// Resistance per metre from one stream's bulk to the wall node (convection, fouling,
     /// half the wall), K·m/W, with that stream's properties at `bulk_c` and the wall at `wall_c`.
     fn side_resistance(&self, stream: &Stream, bulk_c: f64, wall_c: f64) -> (Props, FilmResult, f64) {

@@ -3,7 +3,7 @@
 
 use super::error::*;
 use super::steady::*;
-use crate::model::{Arrangement, Exchanger};
+use crate::model::{Arrangement, Exchanger, Side};
 
 /// The hot stream must not be colder than the cold stream at any face. The trapezoidal
 /// scheme (like Crank–Nicolson in time) stops being monotone when a cell's NTU exceeds about
@@ -62,9 +62,10 @@ pub(crate) fn check_ranges(ex: &Exchanger, s: &SteadySolution) -> Result<(), Sol
 /// own flow direction so the first face reported is where it first leaves the range; `time`
 /// (s) is named in the message for transients.
 pub(crate) fn check_faces_in_range(ex: &Exchanger, hot: &[f64], cold: &[f64], dx: f64, time: Option<f64>) -> Result<(), SolveError> {
-    for (name, stream, faces) in [("hot", &ex.hot, hot), ("cold", &ex.cold, cold)] {
+    for (side, faces) in [(Side::Hot, hot), (Side::Cold, cold)] {
+        let stream = ex.stream(side);
         let (min_c, max_c) = stream.fluid.bounds();
-        let reversed = name == "cold" && ex.arrangement == Arrangement::Counterflow;
+        let reversed = side == Side::Cold && ex.arrangement == Arrangement::Counterflow;
         let order: Box<dyn Iterator<Item = (usize, &f64)>> =
             if reversed { Box::new(faces.iter().enumerate().rev()) } else { Box::new(faces.iter().enumerate()) };
         for (j, &t) in order {
@@ -72,7 +73,7 @@ pub(crate) fn check_faces_in_range(ex: &Exchanger, hot: &[f64], cold: &[f64], dx
                 let range = stream.fluid.range();
                 return Err(SolveError::LeftRange {
                     time_s: time,
-                    stream: name,
+                    stream: side,
                     fluid: stream.fluid.name(),
                     position_m: j as f64 * dx,
                     temperature_c: t,

@@ -53,8 +53,8 @@ pub enum SolveError {
         crate::text::num(*pressure_pa * 1e-5), crate::text::num(*position_m), crate::text::num(*inlet_pa * 1e-5), crate::text::num((*inlet_pa - *pressure_pa) * 1e-5)
     )]
     NegativePressure {
-        /// "hot" or "cold".
-        stream: &'static str,
+        /// Which stream.
+        stream: crate::model::Side,
         /// Where, m.
         position_m: f64,
         /// Local absolute pressure, Pa.
@@ -69,8 +69,8 @@ pub enum SolveError {
         crate::text::num(*position_m), crate::text::num(*pressure_pa * 1e-5), crate::text::num(*saturation_pa * 1e-5), crate::text::num(*temperature_c)
     )]
     Flashing {
-        /// "hot" or "cold".
-        stream: &'static str,
+        /// Which stream.
+        stream: crate::model::Side,
         /// Where, m.
         position_m: f64,
         /// Local absolute pressure, Pa.
@@ -107,8 +107,8 @@ pub enum SolveError {
     LeftRange {
         /// Time in a transient, s (None for a steady solve).
         time_s: Option<f64>,
-        /// "hot" or "cold".
-        stream: &'static str,
+        /// Which stream.
+        stream: crate::model::Side,
         /// Fluid name.
         fluid: String,
         /// Face position, m.

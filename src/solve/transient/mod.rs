@@ -77,7 +77,7 @@ pub struct TransientSettings {
     pub wall_heat_capacity_j_mk: f64,
     /// Heat capacity per metre of metal that follows one stream's temperature (the outer
     /// pipe of a double pipe, with the annulus fluid): (0 hot / 1 cold, J/(m·K)).
-    pub shell: Option<(usize, f64)>,
+    pub shell: Option<(crate::model::Side, f64)>,
     /// Times at which whole profiles are kept, s.
     pub snapshot_times_s: Vec<f64>,
 }
@@ -189,8 +189,8 @@ pub struct Stop {
     /// First output time at which the limit was found, s (the limit was crossed after the
     /// output before it).
     pub time_s: f64,
-    /// "hot" or "cold".
-    pub stream: &'static str,
+    /// Which stream.
+    pub stream: crate::model::Side,
     /// Where, m.
     pub position_m: f64,
     /// The temperature reached there, °C.
@@ -317,10 +317,10 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
     // initial cp: the state stays linear in the enthalpies, so energy closure stays exact;
     // the shell's capacity is then right to the change of cp over the run (0.5 % for water
     // from 15 to 95 °C).
-    if let Some((s, capacity)) = settings.shell {
-        let fluid = if s == 0 { &ex.hot.fluid } else { &ex.cold.fluid };
-        for (m, x) in mass[s].iter_mut().zip(&x0) {
-            *m += capacity * dx / fluid.props(x[s]).cp;
+    if let Some((side, capacity)) = settings.shell {
+        let fluid = &ex.stream(side).fluid;
+        for (m, x) in mass[side.index()].iter_mut().zip(&x0) {
+            *m += capacity * dx / fluid.props(x[side.index()]).cp;
         }
     }
     if settings.wall_heat_capacity_j_mk.is_nan() || settings.wall_heat_capacity_j_mk <= 0.0 {
