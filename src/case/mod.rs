@@ -13,7 +13,7 @@ mod transient_input;
 mod validate;
 
 pub use file::*;
-pub use problem::{CaseError, Problem};
+pub use problem::{CaseError, Problem, ProblemKind};
 pub use spec::{Case, FilmSpec, Geometry, Storage, StreamSpec, TransientSpec, TubeSide};
 pub use transient_input::{SNAPSHOTS_MAX, SNAPSHOT_MAX_ROWS, TIMESERIES_MAX_ROWS};
 pub use validate::{check_name, load, parse_in, parse_str, velocity_warnings, NAME_MAX};

@@ -3,6 +3,84 @@
 
 use crate::text::num;
 
+/// What is wrong, as data: the values and limits involved. [`ProblemKind::render`] is the one
+/// place these become prose.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ProblemKind {
+    /// A required key is absent; `give` says what to give.
+    Missing {
+        /// What to give, e.g. "m" or "the `[geometry]` table".
+        give: String,
+    },
+    /// A key the table does not take.
+    UnknownKey {
+        /// The closest valid key, if any is close.
+        suggestion: Option<String>,
+        /// Where: "at the top level", or "in `[geometry]` for a kind".
+        place: String,
+        /// The keys that are valid there.
+        valid: Vec<String>,
+    },
+    /// A value of the wrong type.
+    WrongType {
+        /// What was expected, e.g. "a number (m)".
+        expected: String,
+        /// What was found, e.g. "the text \"0.025\"".
+        found: String,
+    },
+    /// A word outside its choices.
+    InvalidWord {
+        /// The word given (quoted and escaped).
+        given: String,
+        /// What the word chooses, e.g. "film".
+        what: String,
+        /// The closest valid word, if any is close.
+        suggestion: Option<String>,
+        /// The valid words.
+        valid: Vec<String>,
+    },
+    /// A number that must be finite and above zero is not.
+    NotPositive {
+        /// The value given.
+        value: f64,
+        /// Its unit.
+        unit: String,
+    },
+    /// A number above anything an exchanger has (units wrong?).
+    Implausible {
+        /// The value given.
+        value: f64,
+        /// Its unit.
+        unit: String,
+    },
+    /// Any other problem, already a sentence naming the values and what would be valid.
+    Other(String),
+}
+
+impl ProblemKind {
+    /// The problem as a sentence (after the key).
+    pub fn render(&self) -> String {
+        let quoted = |words: &[String]| words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ");
+        match self {
+            ProblemKind::Missing { give } => format!("is missing: {give}"),
+            ProblemKind::UnknownKey { suggestion, place, valid } => {
+                let hint = suggestion.as_ref().map(|c| format!("did you mean {c}? ")).unwrap_or_default();
+                format!("unknown key; {hint}valid keys {place}: {}", valid.join(", "))
+            }
+            ProblemKind::WrongType { expected, found } => format!("expected {expected}, found {found}"),
+            ProblemKind::InvalidWord { given, what, suggestion, valid } => {
+                let hint = suggestion.as_ref().map(|c| format!(" Did you mean \"{c}\"?")).unwrap_or_default();
+                format!("{given} is not valid for the {what}.{hint} Valid: {}", quoted(valid))
+            }
+            ProblemKind::NotPositive { value, unit } => format!("{} {unit} is not valid: it must be a finite number above zero", num(*value)),
+            ProblemKind::Implausible { value, unit } => {
+                format!("{} {unit} is implausibly large for any exchanger: check the units in the key name", num(*value))
+            }
+            ProblemKind::Other(text) => text.clone(),
+        }
+    }
+}
+
 /// One thing wrong with a case, tied to its key.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Problem {
@@ -10,8 +88,18 @@ pub struct Problem {
     pub key: String,
     /// Line in the case file, where known.
     pub line: Option<usize>,
-    /// What is wrong and what would be valid.
+    /// What is wrong, as data.
+    pub kind: ProblemKind,
+    /// The same as a sentence ([`ProblemKind::render`]).
     pub message: String,
+}
+
+impl Problem {
+    /// A problem of `kind` at `key`.
+    pub fn new(key: impl Into<String>, line: Option<usize>, kind: ProblemKind) -> Self {
+        let message = kind.render();
+        Self { key: key.into(), line, kind, message }
+    }
 }
 
 impl std::fmt::Display for Problem {
@@ -59,14 +147,18 @@ pub(super) struct Checker {
 
 impl Checker {
     pub(super) fn fail(&mut self, key: &str, message: String) {
-        self.problems.push(Problem { key: key.into(), line: None, message });
+        let kind = match message.strip_prefix("is missing: ") {
+            Some(give) => ProblemKind::Missing { give: give.to_string() },
+            None => ProblemKind::Other(message),
+        };
+        self.problems.push(Problem::new(key, None, kind));
     }
     /// A finite value strictly above zero.
     pub(super) fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
         if !(v.is_finite() && v > 0.0) {
-            self.fail(key, format!("{v} {unit} is not valid: it must be a finite number above zero", v = num(v)));
+            self.problems.push(Problem::new(key, None, ProblemKind::NotPositive { value: v, unit: unit.into() }));
         } else if v > 1e9 {
-            self.fail(key, format!("{v} {unit} is implausibly large for any exchanger: check the units in the key name", v = num(v)));
+            self.problems.push(Problem::new(key, None, ProblemKind::Implausible { value: v, unit: unit.into() }));
         }
         v
     }
@@ -74,7 +166,7 @@ impl Checker {
         match v {
             Some(v) => self.positive(key, v, unit),
             None => {
-                self.fail(key, format!("is missing: give a value in {unit} ({why})"));
+                self.problems.push(Problem::new(key, None, ProblemKind::Missing { give: format!("give a value in {unit} ({why})") }));
                 f64::NAN
             }
         }

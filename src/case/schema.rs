@@ -3,7 +3,7 @@
 //! type, each with its line number, all reported in one pass. Values inside the right
 //! shape are checked afterwards by validation.
 
-use super::problem::{closest, Problem};
+use super::problem::{closest, Problem, ProblemKind};
 use toml_edit::{ImDocument, Item, TableLike, Value};
 
 /// What a key holds, read from the case file's JSON Schema ([`super::json_schema`]).
@@ -216,14 +216,17 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                 suggested.push(c.to_string());
                 shape.suggested.push(dotted(path, c));
             }
-            let hint = near.map(|c| format!("did you mean {c}? ")).unwrap_or_default();
             // In a tagged table, say which variant's keys these are.
             let variant = fields.iter().find_map(|f| match &f.ty {
                 Ty::Str(w) if w.len() == 1 => Some(format!(" for {} = \"{}\"", f.key, w[0])),
                 _ => None,
             });
             let here = if path.is_empty() { "at the top level".to_string() } else { format!("in [{}]{}", path.join("."), variant.unwrap_or_default()) };
-            shape.problems.push(Problem { key: dotted(path, key), line, message: format!("unknown key; {hint}valid keys {here}: {}", valid.join(", ")) });
+            shape.problems.push(Problem::new(
+                dotted(path, key),
+                line,
+                ProblemKind::UnknownKey { suggestion: near.map(str::to_string), place: here, valid: valid.clone() },
+            ));
             let mut p = path.clone();
             p.push(key.to_string());
             shape.unknown.push(p);
@@ -236,7 +239,7 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                 Item::ArrayOfTables(_) => "a list of tables".into(),
                 Item::None => "nothing".into(),
             };
-            shape.problems.push(Problem { key: dotted(path, key), line, message: format!("expected {expected}, found {found}") });
+            shape.problems.push(Problem::new(dotted(path, key), line, ProblemKind::WrongType { expected: expected.to_string(), found }));
             let mut p = path.clone();
             p.push(key.to_string());
             shape.wrong_type.push(p);
@@ -248,18 +251,16 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
             (Ty::Int, _) => wrong("a whole number"),
             (Ty::Str(words), Item::Value(Value::String(s))) => {
                 if !words.is_empty() && !words.iter().any(|w| w == s.value()) {
-                    let options: Vec<String> = words.iter().map(|w| w.to_string()).collect();
-                    let hint = closest(s.value(), &options).map(|c| format!(" Did you mean \"{c}\"?")).unwrap_or_default();
-                    shape.problems.push(Problem {
-                        key: dotted(path, key),
+                    shape.problems.push(Problem::new(
+                        dotted(path, key),
                         line,
-                        message: format!(
-                            "{} is not valid for the {}.{hint} Valid: {}",
-                            crate::text::quote(s.value(), 40),
-                            field.hint,
-                            words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", ")
-                        ),
-                    });
+                        ProblemKind::InvalidWord {
+                            given: crate::text::quote(s.value(), 40),
+                            what: field.hint.clone(),
+                            suggestion: closest(s.value(), words).map(str::to_string),
+                            valid: words.clone(),
+                        },
+                    ));
                     let mut p = path.clone();
                     p.push(key.to_string());
                     shape.bad_words.push((p, words[0].clone()));
@@ -286,11 +287,11 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                     let mut here = path.clone();
                     here.push(key.to_string());
                     match t.get(tag) {
-                        None => shape.problems.push(Problem {
-                            key: format!("{}.{tag}", dotted(path, key)),
-                            line: header,
-                            message: format!("is missing: give the {key} {tag}, one of {quoted}"),
-                        }),
+                        None => shape.problems.push(Problem::new(
+                            format!("{}.{tag}", dotted(path, key)),
+                            header,
+                            ProblemKind::Missing { give: format!("give the {key} {tag}, one of {quoted}") },
+                        )),
                         Some(v) => match v.as_str().and_then(|w| variants.iter().find(|(name, _)| name == w)) {
                             Some((_, schema)) => {
                                 path.push(key.to_string());
@@ -299,13 +300,17 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                             }
                             None => {
                                 let given = v.as_str().map(|w| crate::text::quote(w, 40)).unwrap_or_else(|| "a value that is not text".into());
-                                let hint = v.as_str().and_then(|w| closest(w, &names)).map(|c| format!(" Did you mean \"{c}\"?")).unwrap_or_default();
                                 let tag_line = t.key(tag).and_then(|k| k.span()).map(|s| line_of(text, s.start)).or(header);
-                                shape.problems.push(Problem {
-                                    key: format!("{}.{tag}", dotted(path, key)),
-                                    line: tag_line,
-                                    message: format!("{given} is not valid for the {key} {tag}.{hint} Valid: {quoted}"),
-                                });
+                                shape.problems.push(Problem::new(
+                                    format!("{}.{tag}", dotted(path, key)),
+                                    tag_line,
+                                    ProblemKind::InvalidWord {
+                                        given,
+                                        what: format!("{key} {tag}"),
+                                        suggestion: v.as_str().and_then(|w| closest(w, &names)).map(str::to_string),
+                                        valid: names.clone(),
+                                    },
+                                ));
                                 here.push(tag.clone());
                                 shape.bad_words.push((here, names[0].clone()));
                             }
@@ -326,14 +331,14 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
         }
     }
     for field in fields.iter().filter(|f| f.required && !table.contains_key(&f.key) && !suggested.contains(&f.key)) {
-        let what = match &field.ty {
-            Ty::Table(_) | Ty::Tagged(..) => format!("is missing: add {}", field.hint),
+        let give = match &field.ty {
+            Ty::Table(_) | Ty::Tagged(..) => format!("add {}", field.hint),
             Ty::Str(words) if !words.is_empty() => {
-                format!("is missing: give the {}, one of {}", field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "))
+                format!("give the {}, one of {}", field.hint, words.iter().map(|w| format!("\"{w}\"")).collect::<Vec<_>>().join(", "))
             }
-            _ => format!("is missing: give {}", field.hint),
+            _ => format!("give {}", field.hint),
         };
-        shape.problems.push(Problem { key: dotted(path, &field.key), line: header_line, message: what });
+        shape.problems.push(Problem::new(dotted(path, &field.key), header_line, ProblemKind::Missing { give }));
     }
 }
 

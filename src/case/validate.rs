@@ -71,7 +71,7 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
             let set_aside: Vec<String> = shape.wrong_type.iter().chain(&shape.unknown).map(|p| p.join(".")).collect();
             let selectors: Vec<String> = shape.bad_words.iter().filter(|(p, _)| p.len() > 1).map(|(p, _)| format!("{}.", p[..p.len() - 1].join("."))).collect();
             let follows_from_shape = |p: &Problem| {
-                (shape.suggested.contains(&p.key) && p.message.starts_with("is missing"))
+                (shape.suggested.contains(&p.key) && matches!(p.kind, ProblemKind::Missing { .. }))
                     || set_aside.iter().any(|k| p.key == *k || p.message.contains(k.as_str()))
                     || selectors.iter().any(|t| p.key.starts_with(t.as_str()))
                     || shape.bad_words.iter().any(|(b, _)| b.join(".") == p.key)
@@ -88,7 +88,7 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
 /// an input problem, named here, not a failure to write results later.
 fn derived_problems(case: &Case, ex: &Exchanger) -> Vec<Problem> {
     let mut out = Vec::new();
-    let fail = |out: &mut Vec<Problem>, key: String, message: String| out.push(Problem { key, line: None, message });
+    let fail = |out: &mut Vec<Problem>, key: String, message: String| out.push(Problem::new(key, None, ProblemKind::Other(message)));
     let mut c_min = f64::INFINITY;
     for (side, spec, s) in [("hot", &case.hot, &ex.hot), ("cold", &case.cold, &ex.cold)] {
         let key = if matches!(spec.fluid, FluidChoice::Constant(_)) { format!("{side}.properties") } else { side.to_string() };
