@@ -207,7 +207,7 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, write: Writ
     let options = RatingOptions { study_levels: grid_study };
     let report = match study::rate(&case.name, &exchanger, &case.solver, &options, &mut Progress { quiet }) {
         Ok(r) => r,
-        Err(e) => return solver_failed(&e),
+        Err(e) => return solver_failed(&e, case::advice::steady(&e)),
     };
     let written = hxgrid::output::write_steady(&report, &dir, write);
     let stride = hxgrid::output::profile_stride(report.profile.len(), write);
@@ -248,8 +248,9 @@ fn finish(written: Result<Vec<PathBuf>, hxgrid::output::OutputError>, quiet: boo
 }
 
 /// Report a solver failure (nothing was written).
-fn solver_failed(e: &dyn std::fmt::Display) -> ExitCode {
-    errln!("error: {e}\nNo results were written; earlier results (if any) are untouched.");
+fn solver_failed(e: &dyn std::fmt::Display, advice: Option<String>) -> ExitCode {
+    let advice = advice.map(|a| format!("\nWhat to change: {a}.")).unwrap_or_default();
+    errln!("error: {e}.{advice}\nNo results were written; earlier results (if any) are untouched.");
     ExitCode::from(EXIT_SOLVER)
 }
 
@@ -300,7 +301,7 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     }
     let report = match result {
         Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r },
-        Err(e) => return solver_failed(&e),
+        Err(e) => return solver_failed(&e, case::advice::transient(&e)),
     };
     let code = finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report));
     match (&report.stop, code == ExitCode::SUCCESS) {

@@ -15,8 +15,9 @@ fn simulate(text: &str) -> Result<TransientReport, String> {
     let case = hxgrid::case::parse_str(text, "edge", "edge").map_err(|e| e.to_string())?;
     let ex = case.build();
     let spec = case.transient.as_ref().unwrap();
+    // The message as the command line shows it: the error and the advice naming case keys.
     hxgrid::scenario::run("edge", &ex, &spec.inputs(&ex), &spec.settings_for(&ex, &case), spec.response_from_s, &mut hxgrid::solve::SilentObserver)
-        .map_err(|e| e.to_string())
+        .map_err(|e| format!("{e}. {}", hxgrid::case::advice::transient(&e).unwrap_or_default()))
 }
 
 /// The demo's cooling-water schedule replaced by `times`/`values`, at `cells` cells with `scheme`.

@@ -1,6 +1,7 @@
 //! Case input: the TOML mirror ([`CaseFile`]), validation into a typed [`Case`] that
 //! reports every problem at once, and building the [`Exchanger`](crate::model::Exchanger).
 
+pub mod advice;
 mod build;
 mod file;
 mod geometry_input;

@@ -1,4 +1,5 @@
-//! Why a steady solve failed, with the values and the advice a user needs.
+//! Why a steady solve failed, as data with a plain description. Errors name quantities, not
+//! case-file keys: what to change in a case file is said by `case::advice`, which knows them.
 
 /// Why a steady solve failed.
 #[derive(Debug, Clone, thiserror::Error, PartialEq)]
@@ -6,7 +7,8 @@ pub enum SolveError {
     /// Newton did not reach the tolerance.
     #[error(
         "the steady solver did not converge in {iterations} iterations: relative residual {residual:.3e} \
-         (tolerance {tolerance:.1e}), worst at x = {worst_position_m:.4} m. {suggestion}"
+         (tolerance {tolerance:.1e}), worst at x = {} m",
+        crate::text::num(*worst_position_m)
     )]
     NotConverged {
         /// Iterations taken.
@@ -17,8 +19,6 @@ pub enum SolveError {
         tolerance: f64,
         /// Centre of the cell with the largest residual, m.
         worst_position_m: f64,
-        /// What the user can change.
-        suggestion: String,
     },
     /// The linear system could not be solved (singular or non-finite).
     #[error("the Newton linear system became singular or non-finite near x = {} m; check that flows, film coefficients and wall data are positive and physically sized", crate::text::num(*position_m))]
@@ -31,7 +31,7 @@ pub enum SolveError {
     #[error(
         "the solution breaks the second law by {} K at x = {} m (hot colder than cold, or a stream beyond the inlet \
          temperatures) with {cells} cells, largest cell NTU {}. {}",
-        crate::text::num(*deficit_k), crate::text::num(*position_m), crate::text::num(*max_cell_ntu), advice_for(*suggested_cells, *max_cell_ntu)
+        crate::text::num(*deficit_k), crate::text::num(*position_m), crate::text::num(*max_cell_ntu), cause(*suggested_cells, *max_cell_ntu)
     )]
     GridTooCoarse {
         /// Cells used.
@@ -49,7 +49,7 @@ pub enum SolveError {
     /// The local absolute pressure falls to zero or below: the pressure drop exceeds what the
     /// inlet pressure allows.
     #[error(
-        "the {stream} stream's absolute pressure falls to {} bar at x = {} m (inlet {} bar, drop {} bar so far): the pressure drop is larger than the inlet pressure allows. Raise {stream}.pressure_bar_abs, or reduce the flow or the length, or enlarge the passage",
+        "the {stream} stream's absolute pressure falls to {} bar at x = {} m (inlet {} bar, drop {} bar so far): the pressure drop is larger than the inlet pressure allows",
         crate::text::num(*pressure_pa * 1e-5), crate::text::num(*position_m), crate::text::num(*inlet_pa * 1e-5), crate::text::num((*inlet_pa - *pressure_pa) * 1e-5)
     )]
     NegativePressure {
@@ -65,7 +65,7 @@ pub enum SolveError {
     /// A liquid's local pressure falls below its saturation pressure at the local
     /// temperature: it would flash to vapour.
     #[error(
-        "the {stream} stream flashes: at x = {} m its pressure {} bar is below the saturation pressure {} bar of the liquid at {} °C; hxgrid models one phase and does not compute boiling. Raise {stream}.pressure_bar_abs, or reduce the pressure drop",
+        "the {stream} stream flashes: at x = {} m its pressure {} bar is below the saturation pressure {} bar of the liquid at {} °C; hxgrid models one phase and does not compute boiling",
         crate::text::num(*position_m), crate::text::num(*pressure_pa * 1e-5), crate::text::num(*saturation_pa * 1e-5), crate::text::num(*temperature_c)
     )]
     Flashing {
@@ -81,7 +81,7 @@ pub enum SolveError {
         temperature_c: f64,
     },
     /// Both flows are zero: no steady state is defined.
-    #[error("both flows are zero, so the steady state is not defined (it depends on the history): start a transient with initial = \"uniform\", or keep one flow running")]
+    #[error("both flows are zero, so the steady state is not defined (it depends on the history)")]
     NoFlow,
     /// The hot inlet is not hotter than the cold inlet (possible through schedules).
     #[error(
@@ -124,14 +124,12 @@ pub enum SolveError {
     },
 }
 
-/// What to do about a second-law violation.
-pub(crate) fn advice_for(suggested: Option<usize>, max_cell_ntu: f64) -> String {
+/// What caused a second-law violation, from the data.
+fn cause(suggested: Option<usize>, max_cell_ntu: f64) -> String {
     match suggested {
-        Some(n) => format!(
-            "The cells are too long for the scheme: use at least {n} cells ([solver] cells), or scheme = \"upwind\", which stays monotone on coarse grids"
-        ),
+        Some(n) => format!("The cells are too long for the scheme: about {n} cells would keep the solution monotone"),
         None => format!(
-            "The cells are already short (largest cell NTU {}), so more cells will not help: check the inputs \
+            "The cells are already short (largest cell NTU {}), so more cells will not help: the inputs are the cause \
              (property data that are not smooth, a fluid table with too few rows, extreme film coefficients)",
             crate::text::num(max_cell_ntu)
         ),

@@ -182,9 +182,6 @@ pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dy
                 residual: norm / scale,
                 tolerance: settings.tolerance,
                 worst_position_m: (worst as f64 + 0.5) * dx,
-                suggestion: "Try more cells, a looser [solver] residual_tolerance, or more max_iterations; \
-                             check that flows and film coefficients are realistic."
-                    .into(),
             });
         }
         jacobian(ex, &lay, dx, &x, &mut jac);

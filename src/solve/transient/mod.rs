@@ -207,16 +207,6 @@ pub trait TransientObserver {
 
 impl TransientObserver for SilentObserver {}
 
-/// What to try after an integrator stopped: the other integrator is named only where it
-/// is the other one.
-fn advice_for_stop(integrator: &str) -> &'static str {
-    if integrator == "explicit" {
-        "Try integrator = \"implicit\" (stiffly stable), a looser tolerance_K, or fewer cells"
-    } else {
-        "Try a looser tolerance_K, fewer cells, or smoother schedules (a ramp instead of a step); check the inputs for a flow or temperature far outside the steady case"
-    }
-}
-
 /// Why a transient run could not start or finish.
 #[derive(Debug, Clone, thiserror::Error, PartialEq)]
 pub enum TransientError {
@@ -224,7 +214,7 @@ pub enum TransientError {
     #[error(transparent)]
     Solve(#[from] SolveError),
     /// The integrator could not advance.
-    #[error("the {integrator} integrator stopped in the step range starting at t = {} s: {reason}. {}", crate::text::num(*time_s), advice_for_stop(integrator))]
+    #[error("the {integrator} integrator stopped in the step range starting at t = {} s: {reason}", crate::text::num(*time_s))]
     Stalled {
         /// Which integrator.
         integrator: &'static str,
@@ -239,7 +229,7 @@ pub enum TransientError {
     /// A temperature left the range spanned by the inlets (over their schedules) and the
     /// initial state: heat would have flowed from cold to hot.
     #[error(
-        "at t = {} s the {what} reaches {} °C at x = {} m, outside {} … {} °C, the range of the inlet temperatures (over their schedules) and the initial state: the discrete solution breaks the second law. Use more cells or scheme = \"upwind\" (monotone), or a tighter tolerance_K",
+        "at t = {} s the {what} reaches {} °C at x = {} m, outside {} … {} °C, the range of the inlet temperatures (over their schedules) and the initial state: the discrete solution breaks the second law",
         crate::text::num(*time_s), crate::text::num(*value_c), crate::text::num(*position_m), crate::text::num(*min_c), crate::text::num(*max_c)
     )]
     SecondLaw {
