@@ -113,21 +113,21 @@ impl Inputs {
 
     /// The exchanger with the inlet temperatures and flows of time `t`.
     pub fn apply(&self, ex: &Exchanger, t: f64) -> Exchanger {
-        let mut e = ex.clone();
-        e.hot.inlet_c = self.hot_inlet_c.at(t);
-        e.hot.mass_flow_kg_s = self.hot_flow_kg_s.at(t).max(0.0);
-        e.cold.inlet_c = self.cold_inlet_c.at(t);
-        e.cold.mass_flow_kg_s = self.cold_flow_kg_s.at(t).max(0.0);
-        e
+        self.applied(ex, |s| s.at(t))
     }
 
     /// The exchanger with the inputs just before time `t` (see [`Signal::before`]).
     pub fn apply_before(&self, ex: &Exchanger, t: f64) -> Exchanger {
+        self.applied(ex, |s| s.before(t))
+    }
+
+    /// The exchanger with each input's value from `value` (flows floored at zero).
+    fn applied(&self, ex: &Exchanger, value: impl Fn(&Signal) -> f64) -> Exchanger {
         let mut e = ex.clone();
-        e.hot.inlet_c = self.hot_inlet_c.before(t);
-        e.hot.mass_flow_kg_s = self.hot_flow_kg_s.before(t).max(0.0);
-        e.cold.inlet_c = self.cold_inlet_c.before(t);
-        e.cold.mass_flow_kg_s = self.cold_flow_kg_s.before(t).max(0.0);
+        e.hot.inlet_c = value(&self.hot_inlet_c);
+        e.hot.mass_flow_kg_s = value(&self.hot_flow_kg_s).max(0.0);
+        e.cold.inlet_c = value(&self.cold_inlet_c);
+        e.cold.mass_flow_kg_s = value(&self.cold_flow_kg_s).max(0.0);
         e
     }
 
