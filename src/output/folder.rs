@@ -13,6 +13,8 @@
 //!   `.<name>.hxgrid-old-<pid>-<seq>`, which the next run restores if a kill fell between them.
 //! - Staging and old folders left by processes that no longer exist are cleaned up by the
 //!   next run writing beside them (only if they are empty or carry hxgrid's marker).
+//! - Removing a folder deletes only the files its marker lists, the marker and the then
+//!   empty folder (`remove_own_folder`): hxgrid never removes a whole tree.
 //! - Concurrent writers to one folder each stage their own files; the swap is serialised by
 //!   an advisory lock (`flock`) on the parent folder, so the last to finish wins and none fail.
 
@@ -120,6 +122,38 @@ pub fn check_destination(dir: &Path) -> Result<(), OutputError> {
     }
 }
 
+/// Remove a folder hxgrid wrote: the files its marker lists, the marker, then the folder
+/// itself — never anything else. If anything else is inside (a file someone put there after
+/// the last check), the folder is kept, renamed to a visible `<name>.kept-<tag>` beside it
+/// if it sits under a hidden staging name, so nothing that hxgrid did not write is deleted
+/// or hidden.
+fn remove_own_folder(path: &Path) -> Result<(), OutputError> {
+    let listed = marker_files(path).unwrap_or_default();
+    for name in listed.iter().map(String::as_str).chain([MARKER]) {
+        // Only plain names (no separators): the marker is hxgrid's, but never trust a path.
+        if name.contains('/') || name.contains('\\') || name == ".." || name == "." {
+            continue;
+        }
+        let file = path.join(name);
+        if fs::symlink_metadata(&file).is_ok_and(|m| m.is_file()) {
+            fs::remove_file(&file).map_err(io(&file))?;
+        }
+    }
+    match fs::remove_dir(path) {
+        Ok(()) => Ok(()),
+        Err(_) if path.exists() => {
+            // Not empty: something that is not ours. Keep it where a person sees it.
+            let visible = path.file_name().map(|n| n.to_string_lossy().trim_start_matches('.').to_string()).unwrap_or_default();
+            let kept = path.with_file_name(format!("{visible}.kept"));
+            if !kept.exists() {
+                let _ = fs::rename(path, &kept);
+            }
+            Ok(())
+        }
+        Err(e) => Err(io(path)(e)),
+    }
+}
+
 /// A unique suffix for this process's staging folders.
 fn suffix() -> String {
     static SEQ: AtomicU64 = AtomicU64::new(0);
@@ -151,13 +185,13 @@ pub fn write_folder(dir: &Path, files: &[&str], fill: impl FnOnce(&Path) -> Resu
     fs::create_dir(&staging).map_err(io(&staging))?;
     let filled = fs::write(staging.join(MARKER), marker_text(files)).map_err(io(&staging)).and_then(|()| fill(&staging));
     if let Err(e) = filled {
-        let _ = fs::remove_dir_all(&staging);
+        let _ = remove_own_folder(&staging);
         return Err(e);
     }
     let lock = lock_folder(&parent)?;
     let swapped = swap(dir, &staging, &parent, &leaf, &tag);
     if swapped.is_err() && staging.exists() && marker_files(&staging).is_some() {
-        let _ = fs::remove_dir_all(&staging);
+        let _ = remove_own_folder(&staging);
     }
     drop(lock);
     swapped
@@ -175,7 +209,7 @@ fn swap(dir: &Path, staging: &Path, parent: &Path, leaf: &str, tag: &str) -> Res
     match exchange(staging, dir) {
         Ok(()) => {
             // The staging path now holds the old folder, checked above to be hxgrid's own.
-            fs::remove_dir_all(staging).map_err(io(staging))
+            remove_own_folder(staging)
         }
         Err(_) => {
             // No atomic exchange here: two renames, restored by the next run if interrupted.
@@ -186,7 +220,7 @@ fn swap(dir: &Path, staging: &Path, parent: &Path, leaf: &str, tag: &str) -> Res
                 let _ = fs::rename(&old, dir);
                 return Err(io(dir)(e));
             }
-            fs::remove_dir_all(&old).map_err(io(&old))
+            remove_own_folder(&old)
         }
     }
 }
@@ -265,7 +299,7 @@ fn recover_stale(dir: &Path, parent: &Path, leaf: &str) {
         if kind == OLD && fs::symlink_metadata(dir).is_err() {
             let _ = fs::rename(&path, dir);
         } else {
-            let _ = fs::remove_dir_all(&path);
+            let _ = remove_own_folder(&path);
         }
     }
 }
@@ -347,6 +381,24 @@ mod tests {
         assert_eq!(fs::read_to_string(dir.join("a.txt")).unwrap(), "old");
         assert!(!staging.exists());
         assert!(lookalike.join("mine.txt").exists());
+        let _ = fs::remove_dir_all(&root);
+    }
+
+    #[test]
+    fn removing_a_folder_deletes_only_the_files_it_lists() {
+        let root = scratch("own-removal");
+        let dir = root.join(".res.hxgrid-old-1-0");
+        fs::create_dir(&dir).unwrap();
+        fs::write(dir.join(MARKER), marker_text(&["a.txt", "../escape.txt"])).unwrap();
+        fs::write(dir.join("a.txt"), "ours").unwrap();
+        fs::write(root.join("escape.txt"), "not ours").unwrap();
+        fs::write(dir.join("stray.txt"), "someone else's").unwrap();
+        remove_own_folder(&dir).unwrap();
+        // Ours went; the stray file stays, in a visible folder; a listed path outside is ignored.
+        assert!(!dir.exists());
+        assert_eq!(fs::read_to_string(root.join("res.hxgrid-old-1-0.kept/stray.txt")).unwrap(), "someone else's");
+        assert!(!root.join("res.hxgrid-old-1-0.kept/a.txt").exists());
+        assert_eq!(fs::read_to_string(root.join("escape.txt")).unwrap(), "not ours");
         let _ = fs::remove_dir_all(&root);
     }
 }
