@@ -137,8 +137,11 @@ fn assemble(
         hot_release += d.balance.hot_release_w;
         cold_gain += d.balance.cold_gain_w;
         let q_per_length = d.balance.hot_to_wall_w / sol.dx_m;
-        outside[0] += usize::from(!d.hot_film.in_range);
-        outside[1] += usize::from(!d.cold_film.in_range);
+        let within = |s: &crate::model::Stream, props, bulk, film: &crate::transfer::FilmResult| {
+            film.in_range && crate::transfer::film::property_ratios_within(&*s.film, &*s.fluid, props, bulk, sol.wall_c[i], film.reynolds)
+        };
+        outside[0] += usize::from(!within(&ex.hot, &d.hot_props, d.hot_bulk_c, &d.hot_film));
+        outside[1] += usize::from(!within(&ex.cold, &d.cold_props, d.cold_bulk_c, &d.cold_film));
         profile.push(ProfileRow {
             x_m: (i as f64 + 0.5) * sol.dx_m,
             hot_c: d.hot_bulk_c,

@@ -59,6 +59,13 @@ pub trait FilmCorrelation: Send + Sync + Debug {
     }
     /// The published validity range, in words (for reports).
     fn validity(&self) -> String;
+    /// For a correlation written with bulk properties, the range of c̄p/cp_b and ρ_w/ρ_b
+    /// (wall over bulk) within which that is valid at Reynolds number `reynolds`; None where
+    /// no such limit applies. Checked when results are reported, not in the solver's loop
+    /// (see [`property_ratios_within`]).
+    fn bulk_property_range(&self, _reynolds: f64) -> Option<(f64, f64)> {
+        None
+    }
     /// Darcy friction factor for the pressure drop, or None where no friction model is
     /// available for this surface. Default: Churchill (1977) with the channel's roughness.
     fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
@@ -131,4 +138,15 @@ pub fn sieder_tate_laminar_nusselt(gz: f64, mu_ratio: f64) -> f64 {
 /// not the tube's 3.66).
 pub fn sieder_tate_laminar_nusselt_floor(gz: f64, mu_ratio: f64, nu_developed: f64) -> f64 {
     (1.86 * gz.powf(1.0 / 3.0) * mu_ratio.powf(0.14)).max(nu_developed)
+}
+
+/// Whether a cell's wall–bulk property ratios lie within `film`'s bulk-property range:
+/// c̄p/cp_b with c̄p = (h_w − h_b)/(T_w − T_b), and ρ_w/ρ_b.
+pub fn property_ratios_within(film: &dyn FilmCorrelation, fluid: &dyn Fluid, bulk: &Props, bulk_c: f64, wall_c: f64, reynolds: Option<f64>) -> bool {
+    let Some((lo, hi)) = film.bulk_property_range(reynolds.unwrap_or(0.0)) else { return true };
+    let wall = fluid.props(wall_c);
+    let dt = wall_c - bulk_c;
+    let cp_bar = if dt.abs() > 1e-6 { (fluid.enthalpy(wall_c) - fluid.enthalpy(bulk_c)) / dt } else { wall.cp };
+    let within = |r: f64| (lo..=hi).contains(&r);
+    within(cp_bar / bulk.cp) && within(wall.density / bulk.density)
 }

@@ -220,25 +220,14 @@ impl FilmCorrelation for InternalFlow {
         let heat_ratio = ch.heat_diameter_m.map(|d| d / d_h).unwrap_or(1.0);
         let re = ch.reynolds(i.mass_flow_kg_s, i.props.viscosity).unwrap_or(0.0);
         let pr = i.props.prandtl();
-        // Wall properties: for corrections and Pitla, and for the property-ratio check below.
-        let wall_props = i.fluid.props(i.wall_c);
+        // Wall properties only where the correlation uses them (this runs in Newton's loop).
+        let wall_props = if self.uses_wall_temperature() { i.fluid.props(i.wall_c) } else { *i.props };
         let mu_ratio = i.props.viscosity / wall_props.viscosity;
         let gz = re * pr * d_h / ch.flow_length_m;
         let state =
             FlowState { re, pr, mu_ratio, gz, heated: i.heated, pr_wall: wall_props.prandtl(), k_ratio: wall_props.conductivity / i.props.conductivity };
         let (mut nu, mut ok) = self.nusselt(&state, &ch.laminar, heat_ratio);
         let turbulent = self.turbulent_regime(re);
-        // Bulk-property turbulent correlations assume the properties change little between
-        // bulk and wall; near a pseudo-critical point (supercritical CO₂) the mean cp over
-        // the film c̄p = (h_w − h_b)/(T_w − T_b) and the density can differ by tens of %.
-        // Outside 0.9 … 1.1 for c̄p/cp_b or ρ_w/ρ_b (a common-practice bound [M]) a cell is
-        // counted outside the correlation's range unless a property correction is chosen.
-        if re > RE_LAMINAR && self.wall_correction == WallCorrection::None && self.turbulent != Turbulent::Pitla {
-            let dt = i.wall_c - i.bulk_c;
-            let cp_bar = if dt.abs() > 1e-6 { (i.fluid.enthalpy(i.wall_c) - i.fluid.enthalpy(i.bulk_c)) / dt } else { wall_props.cp };
-            let within = |r: f64| (PROPERTY_RATIO_RANGE.0..=PROPERTY_RATIO_RANGE.1).contains(&r);
-            ok &= within(cp_bar / i.props.cp) && within(wall_props.density / i.props.density);
-        }
         match self.wall_correction {
             WallCorrection::None => {}
             WallCorrection::Viscosity => {
@@ -264,6 +253,13 @@ impl FilmCorrelation for InternalFlow {
         self.wall_correction != WallCorrection::None
             || matches!(self.laminar, Laminar::SiederTate)
             || matches!(self.turbulent, Turbulent::SiederTate | Turbulent::Pitla)
+    }
+    // Bulk-property turbulent correlations assume the properties change little between bulk
+    // and wall; near a pseudo-critical point (supercritical CO₂) c̄p and ρ can differ by tens
+    // of %. Unless a property correction is chosen (or Pitla's wall-property form), cells
+    // outside 0.9 … 1.1 (a common-practice bound [M]) are counted outside the range.
+    fn bulk_property_range(&self, reynolds: f64) -> Option<(f64, f64)> {
+        (reynolds > RE_LAMINAR && self.wall_correction == WallCorrection::None && self.turbulent != Turbulent::Pitla).then_some(PROPERTY_RATIO_RANGE)
     }
     fn validity(&self) -> String {
         let lam = match self.laminar {
