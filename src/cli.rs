@@ -63,6 +63,13 @@ pub enum Command {
         #[arg(long, short)]
         quiet: bool,
     },
+    /// Run the built-in verification suite: every arrangement against its published closed-form
+    /// effectiveness, and the observed order of accuracy (exit 7 if a row fails).
+    Verify {
+        /// Print the table as JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// Validate a case file without solving.
     Check {
         /// Case file (TOML).

@@ -37,6 +37,7 @@ pub mod solve;
 pub mod study;
 pub mod text;
 pub mod transfer;
+pub mod verify;
 
 pub use case::Case;
 pub use model::Exchanger;

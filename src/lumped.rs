@@ -4,22 +4,125 @@
 //! Formulas: Incropera et al., *Fundamentals of Heat and Mass Transfer*, Table 11.3 and
 //! Eqs. 11.14–11.15 (LMTD). Pure functions; no I/O.
 
-use crate::model::{Arrangement, Exchanger};
+use crate::model::{Arrangement, Exchanger, Layout, Mixing, Side};
 use serde::Serialize;
 
-/// Effectiveness for `ntu` and capacity ratio `cr` (0 ≤ cr ≤ 1).
-pub fn effectiveness(arrangement: Arrangement, ntu: f64, cr: f64) -> f64 {
+/// Effectiveness for `ntu` and capacity ratio `cr` (0 ≤ cr ≤ 1); `min_side` is the stream
+/// with the smaller capacity rate (it matters where one stream is mixed and the other not).
+///
+/// Network arrangements: crossflow by the exact series (both unmixed) or the one-mixed and
+/// both-mixed forms; shell-and-tube by Incropera Eq. 11.30a per shell (exact for two tube
+/// passes, close for 4, 6, …) and Eq. 11.31 for shells in series; cross-counterflow as its
+/// passes in series in overall counterflow (Eq. 11.31 with the pass effectiveness), exact
+/// when both streams are mixed between passes — see [`closed_form_is_exact`].
+pub fn effectiveness(arrangement: Arrangement, ntu: f64, cr: f64, min_side: Side) -> f64 {
     match arrangement {
-        Arrangement::Counterflow => {
-            if (1.0 - cr).abs() < 1e-9 {
-                ntu / (1.0 + ntu)
-            } else {
-                let e = (-ntu * (1.0 - cr)).exp();
-                (1.0 - e) / (1.0 - cr * e)
-            }
-        }
+        Arrangement::Counterflow => counterflow(ntu, cr),
         Arrangement::Parallel => (1.0 - (-ntu * (1.0 + cr)).exp()) / (1.0 + cr),
+        Arrangement::Network(Layout::Crossflow(c)) => crossflow(ntu, cr, c.mixing(min_side), c.mixing(min_side.other())),
+        Arrangement::Network(Layout::ShellAndTube(s)) => {
+            let shells = s.shells.max(1) as f64;
+            let per_shell = if s.tube_passes <= 1 { counterflow(ntu / shells, cr) } else { one_shell_pass(ntu / shells, cr) };
+            in_series(per_shell, cr, s.shells.max(1))
+        }
+        Arrangement::Network(Layout::CrossCounterflow(c)) => {
+            let passes = c.passes.max(1);
+            // Within a pass the passing stream is one lane across the depth when the pass is
+            // one cell deep (a tube row), else unmixed.
+            let passing = if c.cells_across <= 1 { Mixing::Mixed } else { Mixing::Unmixed };
+            let (min_mix, max_mix) = if c.passing == min_side { (passing, c.through) } else { (c.through, passing) };
+            in_series(crossflow(ntu / passes as f64, cr, min_mix, max_mix), cr, passes)
+        }
     }
+}
+
+/// Whether [`effectiveness`] is the exact solution of the arrangement's idealised model
+/// (constant properties and U), or an approximation of it.
+pub fn closed_form_is_exact(arrangement: Arrangement) -> bool {
+    match arrangement {
+        Arrangement::Counterflow | Arrangement::Parallel | Arrangement::Network(Layout::Crossflow(_)) => true,
+        Arrangement::Network(Layout::ShellAndTube(s)) => s.tube_passes <= 2,
+        Arrangement::Network(Layout::CrossCounterflow(c)) => c.passes == 1 || (c.mixed_between_passes && c.through == Mixing::Mixed),
+    }
+}
+
+/// Counterflow (Incropera Table 11.3).
+pub fn counterflow(ntu: f64, cr: f64) -> f64 {
+    if (1.0 - cr).abs() < 1e-9 {
+        ntu / (1.0 + ntu)
+    } else {
+        let e = (-ntu * (1.0 - cr)).exp();
+        (1.0 - e) / (1.0 - cr * e)
+    }
+}
+
+/// Single-pass crossflow with the C_min stream `min_mix` and the C_max stream `max_mix`
+/// (Incropera Table 11.3; Kays & London). Both unmixed: the exact series of Mason (1954),
+/// ε = (1/(Cr·NTU)) Σₙ Pₙ(NTU)·Pₙ(Cr·NTU), Pₙ(y) = 1 − e^(−y) Σ_{m≤n} y^m/m!.
+pub fn crossflow(ntu: f64, cr: f64, min_mix: Mixing, max_mix: Mixing) -> f64 {
+    if cr <= 1e-12 {
+        return -(-ntu).exp_m1();
+    }
+    match (min_mix, max_mix) {
+        (Mixing::Unmixed, Mixing::Unmixed) => crossflow_unmixed(ntu, cr),
+        // C_max mixed, C_min unmixed.
+        (Mixing::Unmixed, Mixing::Mixed) => -(-cr * -(-ntu).exp_m1()).exp_m1() / cr,
+        // C_min mixed, C_max unmixed.
+        (Mixing::Mixed, Mixing::Unmixed) => -(-(-(-cr * ntu).exp_m1()) / cr).exp_m1(),
+        // Both mixed: ε = [1/(1 − e^(−NTU)) + Cr/(1 − e^(−Cr·NTU)) − 1/NTU]^(−1).
+        (Mixing::Mixed, Mixing::Mixed) => 1.0 / (1.0 / -(-ntu).exp_m1() + cr / -(-cr * ntu).exp_m1() - 1.0 / ntu),
+    }
+}
+
+/// Mason's exact series for crossflow with both streams unmixed. The Poisson tails Pₙ are
+/// summed from the top down, so no term loses digits to cancellation.
+fn crossflow_unmixed(ntu: f64, cr: f64) -> f64 {
+    let tails = |y: f64| -> Vec<f64> {
+        let top = (y + 12.0 * y.sqrt() + 40.0).ceil() as usize;
+        // Poisson probabilities e^(−y) y^m / m! by logarithms (no overflow for large y).
+        let mut ln_fact = 0.0;
+        let pmf: Vec<f64> = (0..=top)
+            .map(|m| {
+                if m > 0 {
+                    ln_fact += (m as f64).ln();
+                }
+                (-y + m as f64 * y.ln() - ln_fact).exp()
+            })
+            .collect();
+        // Pₙ = Σ_{m > n} pmf[m].
+        let mut out = vec![0.0; top + 1];
+        let mut acc = 0.0;
+        for n in (0..=top).rev() {
+            out[n] = acc;
+            acc += pmf[n];
+        }
+        out
+    };
+    let (a, b) = (tails(ntu), tails(cr * ntu));
+    let sum: f64 = a.iter().zip(b.iter().chain(std::iter::repeat(&0.0))).map(|(x, y)| x * y).sum();
+    sum / (cr * ntu)
+}
+
+/// One shell pass with an even number of tube passes (Incropera Eq. 11.30a):
+/// ε₁ = 2{1 + Cr + √(1+Cr²)·(1 + e^(−NTU√(1+Cr²)))/(1 − e^(−NTU√(1+Cr²)))}^(−1).
+pub fn one_shell_pass(ntu: f64, cr: f64) -> f64 {
+    let root = (1.0 + cr * cr).sqrt();
+    let e = (-ntu * root).exp();
+    2.0 / (1.0 + cr + root * (1.0 + e) / -(-ntu * root).exp_m1())
+}
+
+/// `n` identical exchangers of effectiveness `eps1` in series, overall counterflow, both
+/// streams mixed between them (Incropera Eq. 11.31a; Cr = 1: nε₁/(1 + (n − 1)ε₁)).
+pub fn in_series(eps1: f64, cr: f64, n: usize) -> f64 {
+    if n <= 1 {
+        return eps1;
+    }
+    if (1.0 - cr).abs() < 1e-9 {
+        let n = n as f64;
+        return n * eps1 / (1.0 + (n - 1.0) * eps1);
+    }
+    let k = ((1.0 - eps1 * cr) / (1.0 - eps1)).powi(n as i32);
+    (k - 1.0) / (k - cr)
 }
 
 /// Log-mean of two end temperature differences (K); their arithmetic mean when they are
@@ -35,10 +138,12 @@ pub fn lmtd(dt1: f64, dt2: f64) -> Option<f64> {
 }
 
 /// End temperature differences for the arrangement, given the four terminal temperatures.
+/// Networks use the counterflow differences, as the LMTD method with a correction factor F
+/// does: their effective UA (duty / LMTD) is then F·UA.
 pub fn end_differences(arrangement: Arrangement, th_in: f64, th_out: f64, tc_in: f64, tc_out: f64) -> (f64, f64) {
     match arrangement {
-        Arrangement::Counterflow => (th_in - tc_out, th_out - tc_in),
         Arrangement::Parallel => (th_in - tc_in, th_out - tc_out),
+        Arrangement::Counterflow | Arrangement::Network(_) => (th_in - tc_out, th_out - tc_in),
     }
 }
 
@@ -90,7 +195,8 @@ pub fn rate(ex: &Exchanger) -> LumpedResult {
         let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
         let ua = ex.ua_per_length_at(th_mean, tc_mean) * ex.length_m;
         let (ntu, cr) = (ua / c_min, c_min / c_max);
-        let eps = effectiveness(ex.arrangement, ntu, cr);
+        let min_side = if c_hot <= c_cold { Side::Hot } else { Side::Cold };
+        let eps = effectiveness(ex.arrangement, ntu, cr, min_side);
         let duty = eps * c_min * (th_in - tc_in);
         let (th_out, tc_out) = (th_in - duty / c_hot, tc_in + duty / c_cold);
         let (dt1, dt2) = end_differences(ex.arrangement, th_in, th_out, tc_in, tc_out);

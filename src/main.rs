@@ -39,6 +39,8 @@ const EXIT_SOLVER: u8 = 4;
 const EXIT_OUTPUT: u8 = 5;
 /// A transient stopped early on a physical limit; its results up to then were written.
 const EXIT_STOPPED: u8 = 6;
+/// A row of `hxgrid verify` is outside its tolerance.
+const EXIT_VERIFY: u8 = 7;
 
 fn main() -> ExitCode {
     let args = Cli::parse();
@@ -46,6 +48,7 @@ fn main() -> ExitCode {
         Command::Run { case, out, grid_study, all_cells, quiet } => run(&case, out, grid_study.map(|g| g as usize), WriteOptions { all_cells }, quiet),
         Command::Simulate { case, out, quiet } => simulate(&case, out, quiet),
         Command::Check { case } => check(&case),
+        Command::Verify { json } => verify(json),
         Command::New { path } => new_case(&path),
         Command::Schema => {
             outln!("{}", serde_json::to_string_pretty(&case::json_schema()).expect("a schema serialises"));
@@ -58,6 +61,35 @@ fn main() -> ExitCode {
             ExitCode::SUCCESS
         }
         Command::Props { fluid, table, pressure_bar, from, to, step } => props(fluid, table, pressure_bar, from, to, step),
+    }
+}
+
+fn verify(json: bool) -> ExitCode {
+    let rows = hxgrid::verify::run();
+    let failed = rows.iter().filter(|r| !r.passed).count();
+    if json {
+        outln!("{}", serde_json::to_string_pretty(&rows).expect("rows serialise"));
+    } else {
+        outln!("{:<92} {:<14} {:>11} {:>11} {:>10} {:>8}  {:<4}  source", "case", "quantity", "reference", "computed", "error", "tol", "");
+        for r in &rows {
+            outln!(
+                "{:<92} {:<14} {:>11.8} {:>11.8} {:>10.2e} {:>8.0e}  {:<4}  {}",
+                r.case,
+                r.quantity,
+                r.reference,
+                r.computed,
+                r.error,
+                r.tolerance,
+                if r.passed { "ok" } else { "FAIL" },
+                r.source
+            );
+        }
+        outln!("{} rows, {} passed, {failed} failed", rows.len(), rows.len() - failed);
+    }
+    if failed > 0 {
+        ExitCode::from(EXIT_VERIFY)
+    } else {
+        ExitCode::SUCCESS
     }
 }
 

@@ -11,6 +11,7 @@ use approx::assert_relative_eq;
 use common::constant_exchanger;
 use hxgrid::lumped;
 use hxgrid::model::Arrangement::{self, Counterflow, Parallel};
+use hxgrid::model::Side;
 use hxgrid::solve::{solve_steady, SilentObserver, SteadySettings};
 use hxgrid::study::{self, key_quantities, RatingOptions};
 
@@ -38,8 +39,8 @@ fn closed_form_matches_published_check_values() {
         (0.0, 3.0, 0.950213, 0.950213),
     ];
     for (cr, ntu, cf, pf) in cases {
-        assert_relative_eq!(lumped::effectiveness(Counterflow, ntu, cr), cf, epsilon = 6e-7);
-        assert_relative_eq!(lumped::effectiveness(Parallel, ntu, cr), pf, epsilon = 6e-7);
+        assert_relative_eq!(lumped::effectiveness(Counterflow, ntu, cr, Side::Hot), cf, epsilon = 6e-7);
+        assert_relative_eq!(lumped::effectiveness(Parallel, ntu, cr, Side::Hot), pf, epsilon = 6e-7);
     }
 }
 
@@ -51,7 +52,7 @@ fn fine_grid_reproduces_effectiveness_ntu() {
     for arr in [Counterflow, Parallel] {
         for (cr, ntu) in [(0.5, 1.0), (0.5, 3.0), (1.0, 2.0), (1.0, 3.0), (0.25, 0.5), (1e-6, 2.0)] {
             for cold_is_min in [false, true] {
-                let exact = lumped::effectiveness(arr, ntu, cr);
+                let exact = lumped::effectiveness(arr, ntu, cr, Side::Hot);
                 let grid = grid_effectiveness(arr, ntu, cr, cold_is_min, 2000);
                 assert_relative_eq!(grid, exact, max_relative = 1e-6);
             }
@@ -79,7 +80,7 @@ fn observed_order_is_two() {
         let p = s.observed_order.duty.expect("differences above round-off");
         assert!((p - 2.0).abs() < 0.02, "{arr:?}: observed order {p}");
         // Richardson extrapolation from 80 cells is closer to exact than the 80-cell result.
-        let exact = lumped::effectiveness(arr, 3.0, 0.5) * 8000.0 * 80.0;
+        let exact = lumped::effectiveness(arr, 3.0, 0.5, Side::Hot) * 8000.0 * 80.0;
         let finest = s.levels.last().unwrap().values.duty_w;
         assert!((s.extrapolated.duty_w - exact).abs() < 0.01 * (finest - exact).abs());
     }
@@ -120,7 +121,7 @@ fn upwind_and_tvd_schemes_converge_at_their_orders() {
             let s = study::grid_study(&ex, &SteadySettings { max_iterations: 200, ..Default::default() }, 40, 4).unwrap();
             let p = s.observed_order.duty.expect("above round-off");
             assert!(p > lo && p < hi, "{arr:?} {scheme:?}: observed order {p}");
-            let exact = lumped::effectiveness(arr, 2.0, 0.5) * 8000.0 * 80.0;
+            let exact = lumped::effectiveness(arr, 2.0, 0.5, Side::Hot) * 8000.0 * 80.0;
             let finest = s.levels.last().unwrap().values.duty_w;
             assert!((finest - exact).abs() / exact < 2e-2, "{scheme:?}: {finest} vs {exact}");
         }

@@ -20,6 +20,7 @@ fn closed_form(arrangement: Arrangement, ntu: f64, cr: f64) -> f64 {
             (1.0 - e) / (1.0 - cr * e)
         }
         Arrangement::Parallel => (1.0 - (-ntu * (1.0 + cr)).exp()) / (1.0 + cr),
+        Arrangement::Network(_) => unreachable!("networks are checked by the verification suite"),
     }
 }
 

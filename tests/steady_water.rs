@@ -61,6 +61,7 @@ fn physical_bounds_hold() {
                     assert!(h > c);
                 }
             }
+            hxgrid::model::Arrangement::Network(_) => unreachable!("axial demo cases only"),
         }
         let q = study::key_quantities(&ex, &s).duty_w;
         assert!(q > 0.0 && q < ex.max_duty_w());

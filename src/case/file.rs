@@ -3,7 +3,7 @@
 #![allow(non_snake_case)] // keys carry SI unit symbols (wall_conductivity_W_mK)
 #![allow(missing_docs)] // each field is documented in README's input reference
 
-use crate::model::Arrangement;
+use crate::model::{ArrangementKind, Mixing};
 use schemars::JsonSchema;
 use serde::Deserialize;
 
@@ -12,7 +12,13 @@ use serde::Deserialize;
 pub struct CaseFile {
     pub name: Option<String>,
     pub description: Option<String>,
-    pub arrangement: Arrangement,
+    pub arrangement: ArrangementKind,
+    /// With arrangement = "crossflow".
+    pub crossflow: Option<CrossflowFile>,
+    /// With arrangement = "cross_counterflow".
+    pub cross_counterflow: Option<CrossCounterflowFile>,
+    /// With arrangement = "shell_and_tube".
+    pub shell_and_tube: Option<ShellAndTubeFile>,
     /// Heated length; for a tube bank, derived from rows × longitudinal pitch (omit it).
     pub length_m: Option<f64>,
     pub geometry: GeometryFile,
@@ -21,6 +27,42 @@ pub struct CaseFile {
     #[serde(default)]
     pub solver: SolverFile,
     pub transient: Option<TransientFile>,
+}
+
+/// `[crossflow]`: the hot stream flows along `[solver] cells`, the cold across.
+#[derive(Debug, Clone, Default, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct CrossflowFile {
+    /// "unmixed" (default) or "mixed".
+    pub hot: Option<Mixing>,
+    pub cold: Option<Mixing>,
+    /// Cells along the cold stream's flow (default: `[solver] cells`).
+    pub cells_across: Option<i64>,
+}
+
+/// `[cross_counterflow]`: one stream makes passes across the other, counterflow overall.
+#[derive(Debug, Clone, Default, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct CrossCounterflowFile {
+    pub passes: Option<i64>,
+    /// The stream that makes the passes (default: the tube side of a tube bank, else cold).
+    pub passing_stream: Option<SideName>,
+    /// The passing stream is mixed in a header between passes (default false).
+    pub mixed_between_passes: Option<bool>,
+    /// The other stream's mixing across the passes (default "unmixed").
+    pub through_stream: Option<Mixing>,
+    /// Cells along the through stream's flow in each pass (default: `[solver] cells`; a
+    /// tube bank: 1, each pass one row).
+    pub cells_across: Option<i64>,
+}
+
+/// `[shell_and_tube]`.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct ShellAndTubeFile {
+    pub tube_passes: Option<i64>,
+    pub shells_in_series: Option<i64>,
+    pub shell_side: SideName,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]

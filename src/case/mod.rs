@@ -2,6 +2,7 @@
 //! reports every problem at once, and building the [`Exchanger`](crate::model::Exchanger).
 
 pub mod advice;
+mod arrangement_input;
 mod build;
 mod file;
 mod geometry_input;

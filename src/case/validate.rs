@@ -194,7 +194,13 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     if !(1..=10_000).contains(&max_iterations) {
         c.fail("solver.max_iterations", format!("{max_iterations} is not valid: use a whole number from 1 to 10 000"));
     }
-    let transient = f.transient.as_ref().map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize));
+    let scheme = match f.solver.scheme {
+        None | Some(SchemeName::Trapezoidal) => crate::model::Scheme::Trapezoidal,
+        Some(SchemeName::Upwind) => crate::model::Scheme::Upwind,
+        Some(SchemeName::Tvd) => crate::model::Scheme::Tvd,
+    };
+    let arrangement = super::arrangement_input::arrangement(&mut c, f, &geometry, cells.max(1) as usize, scheme);
+    let transient = f.transient.as_ref().filter(|_| arrangement.layout().is_none()).map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize));
     let name = match &f.name {
         Some(given) => {
             if let Err(why) = check_name(given) {
@@ -210,17 +216,13 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
     Ok(Case {
         transient,
         name,
-        arrangement: f.arrangement,
+        arrangement,
         length_m,
         geometry,
         hot,
         cold,
         solver: SteadySettings { cells: cells as usize, tolerance, max_iterations: max_iterations as usize },
-        scheme: match f.solver.scheme {
-            None | Some(SchemeName::Trapezoidal) => crate::model::Scheme::Trapezoidal,
-            Some(SchemeName::Upwind) => crate::model::Scheme::Upwind,
-            Some(SchemeName::Tvd) => crate::model::Scheme::Tvd,
-        },
+        scheme,
         warnings: c.warnings,
     })
 }

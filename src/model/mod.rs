@@ -19,10 +19,12 @@
 //! Fluid energy balances use enthalpy differences between faces, so the heat given up by
 //! the hot stream equals the sum of the cells' heat rates exactly, whatever the properties.
 
+pub mod network;
 pub mod scheme;
 
 use crate::fluid::{Fluid, Props};
 use crate::transfer::{Channel, FilmCorrelation, FilmInput, FilmResult, Wall};
+pub use network::{CrossCounterflow, Crossflow, Feed, Layout, Mixing, Network, ShellAndTube};
 pub use scheme::{Grid, Scheme};
 use std::sync::Arc;
 
@@ -103,22 +105,70 @@ impl<T> PerSide<T> {
     }
 }
 
-/// Flow arrangement of the two streams.
+/// Flow arrangement as a case file names it (`arrangement = "…"`); the settings of the
+/// network arrangements come from their own tables.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "snake_case")]
-pub enum Arrangement {
+pub enum ArrangementKind {
     /// Streams flow in opposite directions.
     Counterflow,
     /// Streams flow in the same direction.
     Parallel,
+    /// Single-pass crossflow (`[crossflow]`).
+    Crossflow,
+    /// Multi-pass cross-counterflow (`[cross_counterflow]`).
+    CrossCounterflow,
+    /// Shell-and-tube passes and shells (`[shell_and_tube]`).
+    ShellAndTube,
+}
+
+impl ArrangementKind {
+    /// Name used in case files and reports.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            ArrangementKind::Counterflow => "counterflow",
+            ArrangementKind::Parallel => "parallel",
+            ArrangementKind::Crossflow => "crossflow",
+            ArrangementKind::CrossCounterflow => "cross_counterflow",
+            ArrangementKind::ShellAndTube => "shell_and_tube",
+        }
+    }
+}
+
+/// Flow arrangement of the two streams.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Arrangement {
+    /// Streams flow in opposite directions along one axis (an axial line of cells).
+    Counterflow,
+    /// Streams flow in the same direction (an axial line of cells).
+    Parallel,
+    /// A cell network (crossflow, passes, shells).
+    Network(Layout),
 }
 
 impl Arrangement {
     /// Name used in case files and reports.
     pub fn as_str(self) -> &'static str {
+        self.kind().as_str()
+    }
+
+    /// The case-file word for this arrangement.
+    pub fn kind(self) -> ArrangementKind {
         match self {
-            Arrangement::Counterflow => "counterflow",
-            Arrangement::Parallel => "parallel",
+            Arrangement::Counterflow => ArrangementKind::Counterflow,
+            Arrangement::Parallel => ArrangementKind::Parallel,
+            Arrangement::Network(Layout::Crossflow(_)) => ArrangementKind::Crossflow,
+            Arrangement::Network(Layout::CrossCounterflow(_)) => ArrangementKind::CrossCounterflow,
+            Arrangement::Network(Layout::ShellAndTube(_)) => ArrangementKind::ShellAndTube,
+        }
+    }
+
+    /// The network layout, for the arrangements that are networks.
+    pub fn layout(self) -> Option<Layout> {
+        match self {
+            Arrangement::Network(l) => Some(l),
+            _ => None,
         }
     }
 }
@@ -305,13 +355,14 @@ impl Exchanger {
     /// a stagnant cell to 2T_w − T_in); so β = ½ up to N = 2 and β = 1/N beyond, continuous at
     /// N = 2, Nβ ≤ 1 always, and 0 — the cell's own unknown, as in the upwind scheme — when the
     /// flow stops. Below N = 2 nothing changes: second order, exact for balanced counterflow.
-    fn side(&self, stream: &Stream, t_in: f64, t_out: f64, nominal_bulk: f64, wall: f64, dx_m: f64) -> (f64, f64, Props, FilmResult, f64) {
+    #[allow(clippy::too_many_arguments)]
+    fn side(&self, stream: &Stream, share: f64, t_in: f64, t_out: f64, nominal_bulk: f64, wall: f64, dx_m: f64) -> (f64, f64, Props, FilmResult, f64) {
         let (props, film, r) = self.side_resistance(stream, nominal_bulk, wall);
         if self.scheme != Scheme::Trapezoidal {
             return (nominal_bulk, 0.5, props, film, r);
         }
         // u = 1/N, finite at zero flow.
-        let u = r * stream.mass_flow_kg_s * props.cp / dx_m;
+        let u = r * share * stream.mass_flow_kg_s * props.cp / dx_m;
         if u >= 0.5 || !u.is_finite() {
             return (nominal_bulk, 0.5, props, film, r);
         }
@@ -321,14 +372,24 @@ impl Exchanger {
         (bulk, beta, props, film, r)
     }
 
-    /// The cell model: heat rates of a cell of length `dx_m` at temperatures `t`.
+    /// The cell model: heat rates of a cell of length `dx_m` at temperatures `t`, each
+    /// stream's whole flow passing through it (the axial line of cells).
     pub fn cell(&self, dx_m: f64, t: &CellTemps) -> CellDetail {
-        let (hot_bulk_c, beta_hot, hot_props, hot_film, r_hot) = self.side(&self.hot, t.hot_in, t.hot_out, t.hot_bulk, t.wall, dx_m);
-        let (cold_bulk_c, beta_cold, cold_props, cold_film, r_cold) = self.side(&self.cold, t.cold_in, t.cold_out, t.cold_bulk, t.wall, dx_m);
+        self.cell_shared(dx_m, [1.0, 1.0], t)
+    }
+
+    /// The cell model for a cell of a network, which takes a share `flow_share` (hot, cold)
+    /// of each stream's flow and the area of a length `dx_m` of the exchanger. Film
+    /// coefficients are those of the whole stream in its channel (the local velocity does
+    /// not depend on how the network is cut into cells); the enthalpy terms carry the
+    /// cell's share of the flow.
+    pub fn cell_shared(&self, dx_m: f64, flow_share: [f64; 2], t: &CellTemps) -> CellDetail {
+        let (hot_bulk_c, beta_hot, hot_props, hot_film, r_hot) = self.side(&self.hot, flow_share[0], t.hot_in, t.hot_out, t.hot_bulk, t.wall, dx_m);
+        let (cold_bulk_c, beta_cold, cold_props, cold_film, r_cold) = self.side(&self.cold, flow_share[1], t.cold_in, t.cold_out, t.cold_bulk, t.wall, dx_m);
         let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
         let balance = CellBalance {
-            hot_release_w: self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
-            cold_gain_w: self.cold.mass_flow_kg_s * (cf.enthalpy(t.cold_out) - cf.enthalpy(t.cold_in)),
+            hot_release_w: flow_share[0] * self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
+            cold_gain_w: flow_share[1] * self.cold.mass_flow_kg_s * (cf.enthalpy(t.cold_out) - cf.enthalpy(t.cold_in)),
             hot_to_wall_w: (hot_bulk_c - t.wall) * dx_m / r_hot,
             wall_to_cold_w: (t.wall - cold_bulk_c) * dx_m / r_cold,
         };
@@ -356,7 +417,12 @@ impl Exchanger {
     /// that part is one forward difference of each side's resistance, so any plugged-in
     /// fluid or correlation is differentiated without code of its own.
     pub fn cell_with_jacobian(&self, dx_m: f64, t: &CellTemps) -> (CellDetail, CellJacobian) {
-        let d = self.cell(dx_m, t);
+        self.cell_shared_with_jacobian(dx_m, [1.0, 1.0], t)
+    }
+
+    /// [`Exchanger::cell_shared`] with the derivatives of its steady residuals.
+    pub fn cell_shared_with_jacobian(&self, dx_m: f64, flow_share: [f64; 2], t: &CellTemps) -> (CellDetail, CellJacobian) {
+        let d = self.cell_shared(dx_m, flow_share, t);
         // q = ΔT·dx/r(T_bulk, T_wall), ΔT = T_bulk − T_wall:
         //   ∂q/∂T_bulk = dx/r·(1 − ΔT·∂r/∂T_bulk / r),  ∂q/∂T_wall = −dx/r·(1 + ΔT·∂r/∂T_wall / r).
         let slopes = |stream: &Stream, bulk: f64, r: f64| {
@@ -374,9 +440,9 @@ impl Exchanger {
         let (g_hot, w_hot) = slopes(&self.hot, d.hot_bulk_c, d.r_hot_per_length); // ∂q_hw/∂T_h,bulk, ∂q_hw/∂T_w
         let (g_cold_q, w_cold_q) = slopes(&self.cold, d.cold_bulk_c, d.r_cold_per_length); // of (T_c − T_w)dx/r = −q_wc
         let (g_cold, w_cold) = (-g_cold_q, -w_cold_q); // ∂q_wc/∂T_c,bulk, ∂q_wc/∂T_w
-        let mc = |s: &Stream, t: f64| s.mass_flow_kg_s * s.fluid.props(t).cp;
-        let (mc_hot_in, mc_hot_out) = (mc(&self.hot, t.hot_in), mc(&self.hot, t.hot_out));
-        let (mc_cold_in, mc_cold_out) = (mc(&self.cold, t.cold_in), mc(&self.cold, t.cold_out));
+        let mc = |s: &Stream, share: f64, t: f64| share * s.mass_flow_kg_s * s.fluid.props(t).cp;
+        let (mc_hot_in, mc_hot_out) = (mc(&self.hot, flow_share[0], t.hot_in), mc(&self.hot, flow_share[0], t.hot_out));
+        let (mc_cold_in, mc_cold_out) = (mc(&self.cold, flow_share[1], t.cold_in), mc(&self.cold, flow_share[1], t.cold_out));
         let mut jac = [
             [mc_hot_in, -mc_hot_out, -g_hot, 0.0, 0.0, 0.0, -w_hot],
             [0.0, 0.0, 0.0, -mc_cold_in, mc_cold_out, -g_cold, -w_cold],

@@ -293,9 +293,10 @@ impl Grid {
     /// Outlet temperatures (hot, cold) from the face arrays of [`Grid::faces`].
     pub fn outlets(arrangement: Arrangement, hot_faces: &[f64], cold_faces: &[f64]) -> (f64, f64) {
         let hot = hot_faces[hot_faces.len() - 1];
+        // (A network is never an axial line; `parallel` stands for "not counterflow".)
         let cold = match arrangement {
             Arrangement::Counterflow => cold_faces[0],
-            Arrangement::Parallel => cold_faces[cold_faces.len() - 1],
+            Arrangement::Parallel | Arrangement::Network(_) => cold_faces[cold_faces.len() - 1],
         };
         (hot, cold)
     }
@@ -308,7 +309,7 @@ impl Grid {
         hot.extend((0..n).map(|i| self.out_face(x, 0, i)));
         let cold = match self.arrangement {
             Arrangement::Counterflow => (0..n).map(|i| self.out_face(x, 1, i)).chain(std::iter::once(self.cold_in_c)).collect(),
-            Arrangement::Parallel => std::iter::once(self.cold_in_c).chain((0..n).map(|i| self.out_face(x, 1, i))).collect(),
+            Arrangement::Parallel | Arrangement::Network(_) => std::iter::once(self.cold_in_c).chain((0..n).map(|i| self.out_face(x, 1, i))).collect(),
         };
         (hot, cold)
     }

@@ -3,7 +3,7 @@
 //! an empty field. Every number is checked finite as it is formatted (a non-finite value stops
 //! the file and names its row and column), so no column list is kept beside the types.
 
-use super::finite::visit;
+use super::finite::{visit, Leaf};
 use crate::results::SteadyReport;
 use crate::scenario::TransientReport;
 use serde::Serialize;
@@ -39,15 +39,19 @@ fn write_rows<'a, T: Serialize + 'a>(rows: impl Iterator<Item = (usize, &'a T)>,
             }
             first = false;
             match v {
-                Some(x) if x.is_finite() => {
+                Leaf::Whole(i) => {
+                    let _ = write!(line, "{i}");
+                    true
+                }
+                Leaf::Real(Some(x)) if x.is_finite() => {
                     let _ = write!(line, "{x:.digits$e}");
                     true
                 }
-                Some(_) => {
+                Leaf::Real(Some(_)) => {
                     bad = Some(format!("row {number}, column {}", path.last().map(|s| s.trim_start_matches('.')).unwrap_or("?")));
                     false
                 }
-                None => true,
+                Leaf::Real(None) => true,
             }
         });
         if let Some(what) = bad {

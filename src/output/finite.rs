@@ -14,7 +14,7 @@ use serde::ser::{self, Serialize};
 pub fn first_non_finite<T: Serialize + ?Sized>(value: &T, root: &str) -> Option<String> {
     let mut found = None;
     visit(value, root, &mut |path, v| match v {
-        Some(x) if !x.is_finite() => {
+        Leaf::Real(Some(x)) if !x.is_finite() => {
             found = Some(path.concat());
             false
         }
@@ -25,15 +25,26 @@ pub fn first_non_finite<T: Serialize + ?Sized>(value: &T, root: &str) -> Option<
 
 /// Call `f` with the path (segments like `root`, `.field`, `[3]`) and value of every
 /// number in `value`, and with None for every absent optional; `f` returns false to stop.
-/// Text, booleans and whole numbers are not visited.
-pub fn visit<T: Serialize + ?Sized>(value: &T, root: &str, f: &mut dyn FnMut(&[String], Option<f64>) -> bool) {
+/// Text and booleans are not visited.
+/// Whole numbers (indices, counts) are visited as `Leaf::Whole`, so a CSV can write them as
+/// integers.
+pub fn visit<T: Serialize + ?Sized>(value: &T, root: &str, f: &mut dyn FnMut(&[String], Leaf) -> bool) {
     let mut walker = Walker { path: vec![root.to_string()], visit: f };
     let _ = value.serialize(&mut walker);
 }
 
+/// A number the walk meets.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Leaf {
+    /// A floating-point value (None: an absent optional).
+    Real(Option<f64>),
+    /// A whole number.
+    Whole(i128),
+}
+
 struct Walker<'v> {
     path: Vec<String>,
-    visit: &'v mut dyn FnMut(&[String], Option<f64>) -> bool,
+    visit: &'v mut dyn FnMut(&[String], Leaf) -> bool,
 }
 
 /// Raised to stop the walk at the first bad number.
@@ -54,6 +65,12 @@ impl ser::Error for Stop {
 
 impl Walker<'_> {
     fn leaf(&mut self, v: Option<f64>) -> Result<(), Stop> {
+        self.any_leaf(Leaf::Real(v))
+    }
+    fn whole(&mut self, v: i128) -> Result<(), Stop> {
+        self.any_leaf(Leaf::Whole(v))
+    }
+    fn any_leaf(&mut self, v: Leaf) -> Result<(), Stop> {
         if (self.visit)(&self.path, v) {
             Ok(())
         } else {
@@ -91,20 +108,34 @@ impl<'a, 'v> ser::Serializer for &'a mut Walker<'v> {
     type SerializeStruct = Compound<'a, 'v>;
     type SerializeStructVariant = Compound<'a, 'v>;
 
-    ignore!(
-        serialize_bool(bool),
-        serialize_i8(i8),
-        serialize_i16(i16),
-        serialize_i32(i32),
-        serialize_i64(i64),
-        serialize_u8(u8),
-        serialize_u16(u16),
-        serialize_u32(u32),
-        serialize_u64(u64),
-        serialize_char(char),
+    ignore!(serialize_bool(bool), serialize_char(char),
         serialize_str(&str),
         serialize_bytes(&[u8]),
     );
+    fn serialize_i64(self, v: i64) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_u64(self, v: u64) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_i32(self, v: i32) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_u32(self, v: u32) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_i16(self, v: i16) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_u16(self, v: u16) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_i8(self, v: i8) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
+    fn serialize_u8(self, v: u8) -> Result<(), Stop> {
+        self.whole(v as i128)
+    }
     fn serialize_f32(self, v: f32) -> Result<(), Stop> {
         self.leaf(Some(v as f64))
     }

@@ -38,11 +38,35 @@ impl KeyQuantities {
     }
 }
 
+/// The meaning of a network cell's indices in profiles.csv: `i` along the first direction
+/// (crossflow the hot stream's flow; cross-counterflow along each pass; shell-and-tube the
+/// axial station from the shell inlet end), `j` across (crossflow along the cold flow;
+/// cross-counterflow the depth cell in its pass; shell-and-tube the tube pass), `k` the pass
+/// (cross-counterflow, from the passing stream's inlet) or shell (shell-and-tube, in the tube
+/// stream's order), 0 for crossflow.
+pub const NETWORK_INDICES: &str = "i: along the first direction; j: across; k: pass or shell";
+
 /// Local values at one cell centre: one row of profiles.csv, whose columns are these
 /// fields' serialised names, in this order.
 #[derive(Debug, Clone, Serialize)]
 pub struct ProfileRow {
-    /// Cell centre, m.
+    /// A network cell's index along the first direction (see [`NETWORK_INDICES`]; absent on an
+    /// axial line of cells).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub i: Option<usize>,
+    /// A network cell's index across.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub j: Option<usize>,
+    /// A network cell's pass or shell.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub k: Option<usize>,
+    /// A network cell's position across the plotted face's width (0–1).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub x_fraction: Option<f64>,
+    /// A network cell's position up the plotted face's height (0–1).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub y_fraction: Option<f64>,
+    /// Cell centre, m (a network: the first-direction fraction × the exchanger length).
     pub x_m: f64,
     /// Hot bulk temperature, °C.
     #[serde(rename = "hot_C")]
@@ -179,6 +203,69 @@ pub struct GridStudy {
     pub finest_estimated_error: KeyQuantities,
 }
 
+/// Temperatures (or another quantity) over a network's plotted face, row-major.
+#[derive(Debug, Clone, Default)]
+pub struct Field {
+    /// Columns (first direction).
+    pub columns: usize,
+    /// Rows (second direction).
+    pub rows: usize,
+    /// Values, `rows × columns`, row `r` column `c` at `r * columns + c`.
+    pub values: Vec<f64>,
+}
+
+/// The 2-D picture of a network result, for plots.
+#[derive(Debug, Clone, Default)]
+pub struct NetworkFields {
+    /// What the horizontal axis is.
+    pub x_label: String,
+    /// What the vertical axis is.
+    pub y_label: String,
+    /// Hot bulk temperature, °C.
+    pub hot_c: Field,
+    /// Cold bulk temperature, °C.
+    pub cold_c: Field,
+    /// Wall temperature, °C.
+    pub wall_c: Field,
+    /// Heat flux on the reference area, W/m².
+    pub heat_flux_w_m2: Field,
+    /// Temperatures of the hot stream's outlet lanes, °C, across its outlet face.
+    pub hot_outlet_lanes_c: Vec<f64>,
+    /// The cold stream's outlet lanes, °C.
+    pub cold_outlet_lanes_c: Vec<f64>,
+}
+
+/// Spread of one stream's outlet temperature across its outlet face.
+#[derive(Debug, Clone, Serialize)]
+pub struct OutletSpread {
+    /// Mixed-mean outlet, °C.
+    pub mixed_mean_C: f64,
+    /// Coldest lane, °C.
+    pub min_C: f64,
+    /// Hottest lane, °C.
+    pub max_C: f64,
+    /// Lanes (cells across the outlet face).
+    pub lanes: usize,
+}
+
+/// What a network rating adds to the summary.
+#[derive(Debug, Clone, Serialize)]
+pub struct NetworkSummary {
+    /// The arrangement's settings.
+    pub layout: crate::model::Layout,
+    /// Cells in the network.
+    pub cells_total: usize,
+    /// Effectiveness of the arrangement's closed form at the grid's own NTU and capacity
+    /// ratio (beside the grid's `effectiveness` and the lumped result's).
+    pub closed_form_effectiveness: f64,
+    /// Whether that closed form is exact for the idealised model (else an approximation).
+    pub closed_form_exact: bool,
+    /// Hot outlet spread.
+    pub hot_outlet: OutletSpread,
+    /// Cold outlet spread.
+    pub cold_outlet: OutletSpread,
+}
+
 /// Everything a steady rating produces.
 #[derive(Debug, Clone, Serialize)]
 pub struct SteadyReport {
@@ -250,6 +337,9 @@ pub struct SteadyReport {
     pub grid_error_estimate: Option<GridError>,
     /// Grid study, if asked for.
     pub grid_study: Option<GridStudy>,
+    /// Network arrangements: layout, closed form, outlet spread (None on an axial line).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub network: Option<NetworkSummary>,
     /// Things the user should look at.
     pub warnings: Vec<String>,
     /// The standing caution.
@@ -272,6 +362,9 @@ pub struct SteadyReport {
     /// Cold face pressures, Pa (empty if not computed).
     #[serde(skip)]
     pub cold_faces_pa: Vec<f64>,
+    /// A network's fields over its face, for plots.
+    #[serde(skip)]
+    pub fields: Option<NetworkFields>,
 }
 
 impl SteadyReport {

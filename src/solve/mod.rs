@@ -7,6 +7,7 @@ mod blocktri;
 mod checks;
 mod error;
 mod jacobian;
+mod network;
 mod steady;
 pub mod transient;
 
@@ -15,6 +16,7 @@ pub use blocktri::BlockTridiagonal;
 /// Most cells a case may ask for.
 pub const MAX_CELLS: usize = 10_000_000;
 
+pub use network::{solve_network, NetworkSolution, MAX_NETWORK_CELLS};
 pub use steady::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 
 /// A small deterministic random generator for the linear-algebra tests (values in ±½).

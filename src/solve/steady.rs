@@ -108,7 +108,8 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
     let (c_hot, c_cold) = (span(&**hf, ex.hot.mass_flow_kg_s), span(&**cf, ex.cold.mass_flow_kg_s));
     let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
     let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
-    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max) * ex.max_duty_w();
+    let min_side = if c_hot <= c_cold { crate::model::Side::Hot } else { crate::model::Side::Cold };
+    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side) * ex.max_duty_w();
     let (h_hot_in, h_cold_in) = (hf.enthalpy(th), cf.enthalpy(tc));
     let dh_hot = q / ex.hot.mass_flow_kg_s;
     let dh_cold = q / ex.cold.mass_flow_kg_s;
@@ -118,13 +119,13 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
     let cold_at = |s: f64| cf.temperature_from_enthalpy(h_cold_in + dh_cold * s);
     let cold_path = |x: f64| match ex.arrangement {
         Arrangement::Counterflow => 1.0 - x,
-        Arrangement::Parallel => x,
+        Arrangement::Parallel | Arrangement::Network(_) => x,
     };
     (0..lay.n)
         .map(|i| {
             let face = match ex.arrangement {
                 Arrangement::Counterflow => i as f64 / n,
-                Arrangement::Parallel => (i + 1) as f64 / n,
+                Arrangement::Parallel | Arrangement::Network(_) => (i + 1) as f64 / n,
             };
             let centre = (i as f64 + 0.5) / n;
             let wall = 0.5 * (hot_at(centre) + cold_at(cold_path(centre)));
@@ -136,18 +137,27 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
 /// The steady state with a stream stopped. With no flow a stream carries no enthalpy, so in
 /// every cell its film carries no heat: the wall and the stopped fluid sit at the flowing
 /// stream's temperature, which passes unchanged (its inlet everywhere), and the duty is zero.
-/// Uniform values satisfy every scheme's cell balances exactly. With both stopped the steady
-/// state is not defined (it depends on the history).
-fn stopped_flow_state(ex: &Exchanger, lay: &Grid, dx: f64) -> Result<Option<SteadySolution>, SolveError> {
-    let (hot_stopped, cold_stopped) = (ex.hot.mass_flow_kg_s <= 0.0, ex.cold.mass_flow_kg_s <= 0.0);
-    let t = match (hot_stopped, cold_stopped) {
-        (false, false) => return Ok(None),
-        (true, true) => return Err(SolveError::NoFlow),
-        (true, false) => ex.cold.inlet_c,
-        (false, true) => ex.hot.inlet_c,
-    };
-    let x = vec![Vector3::new(t, t, t); lay.n];
-    Ok(Some(unpack(lay, dx, &x, 0, 0.0)))
+/// Uniform values satisfy every scheme's cell balances exactly (None: both flow). With both
+/// stopped the steady state is not defined (it depends on the history).
+pub(crate) fn stopped_flow_temperature(ex: &Exchanger) -> Result<Option<f64>, SolveError> {
+    match (ex.hot.mass_flow_kg_s <= 0.0, ex.cold.mass_flow_kg_s <= 0.0) {
+        (false, false) => Ok(None),
+        (true, true) => Err(SolveError::NoFlow),
+        (true, false) => Ok(Some(ex.cold.inlet_c)),
+        (false, true) => Ok(Some(ex.hot.inlet_c)),
+    }
+}
+
+/// (scale, target) of the convergence test for `cells` cells: the residual scale (the
+/// maximum duty) and Σ|r| to reach. The residual cannot go below the round-off in the
+/// enthalpy differences, which grows with a stream's ṁ·|h|: a stream with 10⁶ times the
+/// other's capacity would otherwise never meet a tolerance relative to the duty. Converge at
+/// whichever is larger.
+pub(crate) fn convergence_target(ex: &Exchanger, cells: usize, tolerance: f64) -> (f64, f64) {
+    let scale = ex.max_duty_w().abs().max(f64::MIN_POSITIVE);
+    let size = |s: &crate::model::Stream| s.mass_flow_kg_s * (s.fluid.enthalpy(ex.hot.inlet_c).abs() + s.fluid.enthalpy(ex.cold.inlet_c).abs());
+    let roundoff = 16.0 * f64::EPSILON * cells as f64 * (size(&ex.hot) + size(&ex.cold));
+    (scale, (tolerance * scale).max(roundoff))
 }
 
 /// Solve the steady state of `ex` on `settings.cells` cells.
@@ -155,18 +165,10 @@ pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dy
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     let lay = Grid { arrangement: ex.arrangement, n, scheme: ex.scheme, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };
-    if let Some(stopped) = stopped_flow_state(ex, &lay, dx)? {
-        return Ok(stopped);
+    if let Some(t) = stopped_flow_temperature(ex)? {
+        return Ok(unpack(&lay, dx, &vec![Vector3::new(t, t, t); lay.n], 0, 0.0));
     }
-    let scale = ex.max_duty_w().abs().max(f64::MIN_POSITIVE);
-    // The residual cannot go below the round-off in the enthalpy differences, which grows
-    // with a stream's ṁ·|h|: a stream with 10⁶ times the other's capacity would otherwise
-    // never meet a tolerance relative to the duty. Converge at whichever is larger.
-    let roundoff = {
-        let size = |s: &crate::model::Stream| s.mass_flow_kg_s * (s.fluid.enthalpy(ex.hot.inlet_c).abs() + s.fluid.enthalpy(ex.cold.inlet_c).abs());
-        16.0 * f64::EPSILON * n as f64 * (size(&ex.hot) + size(&ex.cold))
-    };
-    let target = (settings.tolerance * scale).max(roundoff);
+    let (scale, target) = convergence_target(ex, n, settings.tolerance);
     let mut x = initial_guess(ex, &lay);
     let mut r = vec![Vector3::zeros(); n];
     let mut step = vec![Vector3::zeros(); n];

@@ -6,6 +6,8 @@ use crate::model::{Exchanger, Side};
 use crate::results::*;
 use crate::solve::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 
+pub mod network;
+
 /// Duty and outlets of a solution.
 pub fn key_quantities(ex: &Exchanger, s: &SteadySolution) -> KeyQuantities {
     let f = &ex.hot.fluid;
@@ -35,6 +37,9 @@ pub fn observed_order(coarse: f64, medium: f64, fine: f64, ratio: f64) -> Option
 /// Solve at `base` cells and at `levels − 1` successive doublings (levels ≥ 3 for an
 /// observed order).
 pub fn grid_study(ex: &Exchanger, settings: &SteadySettings, base: usize, levels: usize) -> Result<GridStudy, SolveError> {
+    if let Some(layout) = ex.arrangement.layout() {
+        return network::grid_study(ex, &layout, settings, base, levels);
+    }
     let mut out = Vec::new();
     for k in 0..levels.max(2) {
         let cells = base << k;
@@ -73,6 +78,9 @@ pub fn rate(
     options: &RatingOptions,
     observer: &mut dyn Observer,
 ) -> Result<SteadyReport, SolveError> {
+    if let Some(layout) = ex.arrangement.layout() {
+        return network::rate(case_name, ex, &layout, settings, options, observer);
+    }
     let sol = solve_steady(ex, settings, observer)?;
     let lumped = lumped::rate(ex);
     let grid_error_estimate = if sol.cells >= 2 {
@@ -90,7 +98,7 @@ pub fn rate(
         Some(levels) => Some(grid_study(ex, settings, settings.cells, levels)?),
         None => None,
     };
-    let report = assemble(case_name, ex, &sol, lumped, grid_error_estimate, grid_study);
+    let report = assemble(case_name, ex, solved_line(ex, &sol), lumped, grid_error_estimate, grid_study);
     check_local_pressure(ex, &report)?;
     Ok(report)
 }
@@ -116,37 +124,92 @@ fn check_local_pressure(ex: &Exchanger, r: &SteadyReport) -> Result<(), SolveErr
     Ok(())
 }
 
-fn assemble(
+/// A solution made ready for the report: every cell's detail with its equivalent length and
+/// wall temperature, and what differs between an axial line and a network.
+pub(crate) struct Solved {
+    /// `[solver] cells`.
+    pub cells: usize,
+    /// Newton iterations.
+    pub iterations: usize,
+    /// Final relative residual.
+    pub relative_residual: f64,
+    /// Per cell: detail, equivalent length (m), wall temperature (°C).
+    pub details: Vec<(crate::model::CellDetail, f64, f64)>,
+    /// Per cell: x (m) and, in a network, (i, j, k, x fraction, y fraction).
+    pub positions: Vec<(f64, Option<([usize; 3], [f64; 2])>)>,
+    /// Duty and outlets.
+    pub q: KeyQuantities,
+    /// Pressure at each face of each stream (axial line) — empty where not computed.
+    pub faces_pa: [Vec<f64>; 2],
+    /// Pressure drop of each stream, Pa (None: no friction model).
+    pub pressure_drop: [Option<f64>; 2],
+    /// Face positions and temperatures (axial line; empty for a network).
+    pub faces_m: Vec<f64>,
+    /// Hot and cold face temperatures.
+    pub faces_c: [Vec<f64>; 2],
+    /// Network extras.
+    pub network: Option<(NetworkSummary, NetworkFields)>,
+}
+
+/// The solution on an axial line, ready for [`assemble`].
+fn solved_line(ex: &Exchanger, sol: &SteadySolution) -> Solved {
+    let details: Vec<_> = (0..sol.cells).map(|i| (ex.cell(sol.dx_m, &sol.cell_temps(i)), sol.dx_m, sol.wall_c[i])).collect();
+    let plain: Vec<_> = details.iter().map(|d| d.0).collect();
+    let (hot_faces_pa, cold_faces_pa) = pressures(ex, sol, &plain);
+    let drop = |faces: &[f64], inlet_at_end: bool| {
+        (!faces.is_empty()).then(|| if inlet_at_end { faces[faces.len() - 1] - faces[0] } else { faces[0] - faces[faces.len() - 1] })
+    };
+    let pressure_drop = [drop(&hot_faces_pa, false), drop(&cold_faces_pa, ex.arrangement == crate::model::Arrangement::Counterflow)];
+    Solved {
+        cells: sol.cells,
+        iterations: sol.iterations,
+        relative_residual: sol.relative_residual,
+        positions: (0..sol.cells).map(|i| ((i as f64 + 0.5) * sol.dx_m, None)).collect(),
+        details,
+        q: key_quantities(ex, sol),
+        faces_pa: [hot_faces_pa, cold_faces_pa],
+        pressure_drop,
+        faces_m: (0..=sol.cells).map(|j| j as f64 * sol.dx_m).collect(),
+        faces_c: [sol.hot_faces_c.clone(), sol.cold_faces_c.clone()],
+        network: None,
+    }
+}
+
+pub(crate) fn assemble(
     case_name: &str,
     ex: &Exchanger,
-    sol: &SteadySolution,
+    sol: Solved,
     lumped: LumpedResult,
     grid_error_estimate: Option<GridError>,
     grid_study: Option<GridStudy>,
 ) -> SteadyReport {
     let arr = ex.arrangement;
     let (th_in, tc_in) = (ex.hot.inlet_c, ex.cold.inlet_c);
-    let details: Vec<_> = (0..sol.cells).map(|i| ex.cell(sol.dx_m, &sol.cell_temps(i))).collect();
-    let (hot_faces_pa, cold_faces_pa) = pressures(ex, sol, &details);
+    let [hot_faces_pa, cold_faces_pa] = sol.faces_pa;
     let centre = |faces: &[f64], i: usize| (!faces.is_empty()).then(|| 0.5 * (faces[i] + faces[i + 1]));
-    let mut profile = Vec::with_capacity(sol.cells);
+    let mut profile = Vec::with_capacity(sol.details.len());
     let (mut ua, mut hot_release, mut cold_gain) = (0.0, 0.0, 0.0);
     let mut outside = [0usize; 2];
-    for (i, d) in details.iter().enumerate() {
-        ua += d.ua_per_length_w_mk * sol.dx_m;
+    for (i, ((d, dx, wall), (x_m, cell))) in sol.details.iter().zip(&sol.positions).enumerate() {
+        ua += d.ua_per_length_w_mk * dx;
         hot_release += d.balance.hot_release_w;
         cold_gain += d.balance.cold_gain_w;
-        let q_per_length = d.balance.hot_to_wall_w / sol.dx_m;
+        let q_per_length = d.balance.hot_to_wall_w / dx;
         let within = |s: &crate::model::Stream, props, bulk, film: &crate::transfer::FilmResult| {
-            film.in_range && crate::transfer::film::property_ratios_within(&*s.film, &*s.fluid, props, bulk, sol.wall_c[i], film.reynolds)
+            film.in_range && crate::transfer::film::property_ratios_within(&*s.film, &*s.fluid, props, bulk, *wall, film.reynolds)
         };
         outside[0] += usize::from(!within(&ex.hot, &d.hot_props, d.hot_bulk_c, &d.hot_film));
         outside[1] += usize::from(!within(&ex.cold, &d.cold_props, d.cold_bulk_c, &d.cold_film));
         profile.push(ProfileRow {
-            x_m: (i as f64 + 0.5) * sol.dx_m,
+            i: cell.map(|c| c.0[0]),
+            j: cell.map(|c| c.0[1]),
+            k: cell.map(|c| c.0[2]),
+            x_fraction: cell.map(|c| c.1[0]),
+            y_fraction: cell.map(|c| c.1[1]),
+            x_m: *x_m,
             hot_c: d.hot_bulk_c,
             cold_c: d.cold_bulk_c,
-            wall_c: sol.wall_c[i],
+            wall_c: *wall,
             heat_rate_per_length_w_m: q_per_length,
             heat_flux_w_m2: q_per_length / ex.reference_area_per_length_m,
             u_w_m2k: d.ua_per_length_w_mk / ex.reference_area_per_length_m,
@@ -168,7 +231,7 @@ fn assemble(
             p_cold_pa: centre(&cold_faces_pa, i),
         });
     }
-    let q = key_quantities(ex, sol);
+    let q = sol.q;
     let (dth, dtc) = (th_in - q.hot_outlet_c, q.cold_outlet_c - tc_in);
     let dt_max = th_in - tc_in;
     // Mean capacity rates C = Q/ΔT: C_min belongs to the stream with the larger ΔT.
@@ -194,17 +257,13 @@ fn assemble(
             warnings.push(format!(
                 "{name} stream: {} of {} cells are outside the validity range of the {} correlation ({}); its film coefficient there is extrapolated or blended and less certain",
                 outside[k],
-                sol.cells,
+                sol.details.len(),
                 stream.film.name(),
                 stream.film.validity()
             ));
         }
     }
-    let drop = |faces: &[f64], inlet_at_end: bool| {
-        (!faces.is_empty()).then(|| if inlet_at_end { faces[faces.len() - 1] - faces[0] } else { faces[0] - faces[faces.len() - 1] })
-    };
-    let hot_dp = drop(&hot_faces_pa, false);
-    let cold_dp = drop(&cold_faces_pa, arr == crate::model::Arrangement::Counterflow);
+    let [hot_dp, cold_dp] = sol.pressure_drop;
     for (name, stream, dp) in [("hot", &ex.hot, hot_dp), ("cold", &ex.cold, cold_dp)] {
         match dp {
             None => warnings.push(format!("{name} stream: pressure drop not computed (no friction model for the {} surface)", stream.film.name())),
@@ -232,6 +291,24 @@ fn assemble(
             ));
         }
     }
+    let (network, fields) = match sol.network {
+        Some((mut summary, fields)) => {
+            // The closed form at the grid's own NTU and capacity ratio: what separates the
+            // grid from the lumped result apart from property variation.
+            let min_side = if dth.abs() >= dtc.abs() { crate::model::Side::Hot } else { crate::model::Side::Cold };
+            let cr = if dt_big > 0.0 { dt_small / dt_big } else { 0.0 };
+            summary.closed_form_effectiveness = lumped::effectiveness(arr, ua / c_min, cr, min_side);
+            if !summary.closed_form_exact {
+                warnings.push(format!(
+                    "the lumped result for {} uses an approximate closed form (see README, 'Arrangements'); the grid result does not",
+                    arr.as_str()
+                ));
+            }
+            (Some(summary), Some(fields))
+        }
+        None => (None, None),
+    };
+    let [hot_faces_c, cold_faces_c] = sol.faces_c;
     SteadyReport {
         case: case_name.to_string(),
         arrangement: arr.as_str(),
@@ -267,14 +344,16 @@ fn assemble(
         grid_vs_lumped,
         grid_error_estimate,
         grid_study,
+        network,
         warnings,
         caution: CAUTION,
         profile,
-        faces_m: (0..=sol.cells).map(|j| j as f64 * sol.dx_m).collect(),
-        hot_faces_c: sol.hot_faces_c.clone(),
-        cold_faces_c: sol.cold_faces_c.clone(),
+        faces_m: sol.faces_m,
+        hot_faces_c,
+        cold_faces_c,
         hot_faces_pa,
         cold_faces_pa,
+        fields,
     }
 }
 

@@ -1,0 +1,166 @@
+//! Rating a cell network: the solve at the case's grid, a solve at half the cells in every
+//! direction for the grid error, grid studies that refine every direction together, and
+//! the network's fields and outlet spread for the report.
+
+use super::{assemble, observed_order, richardson, RatingOptions, Solved};
+use crate::lumped;
+use crate::model::{Exchanger, Layout, Side};
+use crate::results::*;
+use crate::solve::{solve_network, NetworkSolution, Observer, SilentObserver, SolveError, SteadySettings};
+
+/// Duty and outlets of a network solution (duty from the hot stream's enthalpy change).
+pub fn key_quantities(ex: &Exchanger, s: &NetworkSolution) -> KeyQuantities {
+    let f = &ex.hot.fluid;
+    let hot_out = s.outlet_c(Side::Hot);
+    KeyQuantities { duty_w: ex.hot.mass_flow_kg_s * (f.enthalpy(ex.hot.inlet_c) - f.enthalpy(hot_out)), hot_outlet_c: hot_out, cold_outlet_c: s.outlet_c(Side::Cold) }
+}
+
+/// The layout refined (or coarsened) to `cells` along the first direction, keeping the
+/// ratio of cells across to cells along that the case has.
+fn scaled(layout: &Layout, base_cells: usize, cells: usize) -> Layout {
+    match layout.cells_across() {
+        Some(across) => layout.with_cells_across(((across * cells) as f64 / base_cells as f64).round().max(1.0) as usize),
+        None => *layout,
+    }
+}
+
+/// Solve the network at `cells` along the first direction (cells across scaled with it).
+pub fn solve_at(ex: &Exchanger, layout: &Layout, settings: &SteadySettings, cells: usize, observer: &mut dyn Observer) -> Result<NetworkSolution, SolveError> {
+    solve_network(ex, &scaled(layout, settings.cells, cells), &SteadySettings { cells, ..settings.clone() }, observer)
+}
+
+/// Grid study of a network: `levels` solves from `base` cells, each doubling every direction.
+pub fn grid_study(ex: &Exchanger, layout: &Layout, settings: &SteadySettings, base: usize, levels: usize) -> Result<GridStudy, SolveError> {
+    let mut out = Vec::new();
+    for k in 0..levels.max(2) {
+        let cells = base << k;
+        let s = solve_at(ex, layout, settings, cells, &mut SilentObserver)?;
+        out.push(StudyLevel { cells, iterations: s.iterations, values: key_quantities(ex, &s) });
+    }
+    let n = out.len();
+    let (fine, medium) = (out[n - 1].values, out[n - 2].values);
+    let order = ex.scheme.formal_order();
+    let extrapolated = fine.zip(&medium, |f, c| richardson(f, c, 2.0, order));
+    let observed = |get: fn(&KeyQuantities) -> f64| (n >= 3).then(|| observed_order(get(&out[n - 3].values), get(&medium), get(&fine), 2.0)).flatten();
+    Ok(GridStudy {
+        formal_order: order,
+        observed_order: ObservedOrder { duty: observed(|q| q.duty_w), hot_outlet: observed(|q| q.hot_outlet_c), cold_outlet: observed(|q| q.cold_outlet_c) },
+        finest_estimated_error: fine.zip(&extrapolated, |f, e| f - e),
+        extrapolated,
+        levels: out,
+    })
+}
+
+/// Rate a network arrangement (see [`super::rate`]).
+pub fn rate(
+    case_name: &str,
+    ex: &Exchanger,
+    layout: &Layout,
+    settings: &SteadySettings,
+    options: &RatingOptions,
+    observer: &mut dyn Observer,
+) -> Result<SteadyReport, SolveError> {
+    let sol = solve_network(ex, layout, settings, observer)?;
+    let lumped = lumped::rate(ex);
+    let grid_error_estimate = if sol.cells >= 2 {
+        let coarse_cells = sol.cells / 2;
+        let coarse = solve_at(ex, layout, settings, coarse_cells, &mut SilentObserver)?;
+        let (fq, cq) = (key_quantities(ex, &sol), key_quantities(ex, &coarse));
+        let ratio = sol.cells as f64 / coarse_cells as f64;
+        let order = ex.scheme.formal_order();
+        let extrapolated = fq.zip(&cq, |f, c| richardson(f, c, ratio, order));
+        Some(GridError { coarse_cells, order, estimated_error: fq.zip(&extrapolated, |f, e| f - e), extrapolated })
+    } else {
+        None
+    };
+    let grid_study = match options.study_levels {
+        Some(levels) => Some(grid_study(ex, layout, settings, settings.cells, levels)?),
+        None => None,
+    };
+    let solved = solved(ex, layout, &sol, &lumped);
+    Ok(assemble(case_name, ex, solved, lumped, grid_error_estimate, grid_study))
+}
+
+/// A network solution made ready for the report.
+fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumped::LumpedResult) -> Solved {
+    let net = &sol.network;
+    let details: Vec<_> = (0..net.cells.len())
+        .map(|k| {
+            let c = &net.cells[k];
+            let dx = sol.dx_m(k);
+            (ex.cell_shared(dx, c.flow_share, &sol.cell_temps(k)), dx, sol.cell_c[k][2])
+        })
+        .collect();
+    let positions = net.cells.iter().map(|c| (c.position[0] * ex.length_m, Some((c.index, c.position)))).collect();
+    let q = key_quantities(ex, sol);
+    // Pressure drop: one step along each stream's flow length from its inlet to its mixed
+    // outlet, at the flow-weighted mean Reynolds number of its cells.
+    let pressure_drop = [Side::Hot, Side::Cold].map(|side| {
+        let s = side.index();
+        let stream = ex.stream(side);
+        let (mut w, mut re) = (0.0, 0.0);
+        for (c, (d, _, _)) in net.cells.iter().zip(&details) {
+            let film = if side == Side::Hot { &d.hot_film } else { &d.cold_film };
+            let share = c.flow_share[s] * c.area_share;
+            re += share * film.reynolds?;
+            w += share;
+        }
+        let outlet = if side == Side::Hot { q.hot_outlet_c } else { q.cold_outlet_c };
+        stream.pressure_drop(stream.channel.flow_length_m, stream.inlet_c, outlet, stream.inlet_pressure_pa, (w > 0.0).then(|| re / w))
+    });
+    let field = |value: &dyn Fn(usize) -> f64| {
+        let (columns, rows) = net.plot_shape;
+        let mut values = vec![f64::NAN; columns * rows];
+        for (k, c) in net.cells.iter().enumerate() {
+            let col = ((c.position[0] * columns as f64) as usize).min(columns - 1);
+            let row = ((c.position[1] * rows as f64) as usize).min(rows - 1);
+            values[row * columns + col] = value(k);
+        }
+        Field { columns, rows, values }
+    };
+    let (x_label, y_label) = match layout {
+        Layout::Crossflow(_) => ("along the hot flow (fraction)", "along the cold flow (fraction)"),
+        Layout::CrossCounterflow(c) => (
+            "along each pass (fraction)",
+            if c.passing == Side::Hot { "depth along the cold flow, passes (fraction)" } else { "depth along the hot flow, passes (fraction)" },
+        ),
+        Layout::ShellAndTube(_) => ("along the shell flow, shells in series (fraction)", "tube pass"),
+    };
+    let fields = NetworkFields {
+        x_label: x_label.into(),
+        y_label: y_label.into(),
+        hot_c: field(&|k| details[k].0.hot_bulk_c),
+        cold_c: field(&|k| details[k].0.cold_bulk_c),
+        wall_c: field(&|k| details[k].2),
+        heat_flux_w_m2: field(&|k| details[k].0.balance.hot_to_wall_w / details[k].1 / ex.reference_area_per_length_m),
+        hot_outlet_lanes_c: sol.outlet_lanes_c(Side::Hot),
+        cold_outlet_lanes_c: sol.outlet_lanes_c(Side::Cold),
+    };
+    let spread = |lanes: &[f64], mean: f64| OutletSpread {
+        mixed_mean_C: mean,
+        min_C: lanes.iter().copied().fold(f64::INFINITY, f64::min),
+        max_C: lanes.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        lanes: lanes.len(),
+    };
+    let summary = NetworkSummary {
+        layout: *layout,
+        cells_total: net.cells.len(),
+        closed_form_effectiveness: lumped.effectiveness, // replaced at the grid's NTU and Cr in assemble
+        closed_form_exact: lumped::closed_form_is_exact(ex.arrangement),
+        hot_outlet: spread(&fields.hot_outlet_lanes_c, q.hot_outlet_c),
+        cold_outlet: spread(&fields.cold_outlet_lanes_c, q.cold_outlet_c),
+    };
+    Solved {
+        cells: sol.cells,
+        iterations: sol.iterations,
+        relative_residual: sol.relative_residual,
+        details,
+        positions,
+        q,
+        faces_pa: [Vec::new(), Vec::new()],
+        pressure_drop,
+        faces_m: Vec::new(),
+        faces_c: [Vec::new(), Vec::new()],
+        network: Some((summary, fields)),
+    }
+}
