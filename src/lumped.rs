@@ -224,3 +224,48 @@ pub fn rate(ex: &Exchanger) -> LumpedResult {
     }
     result.expect("at least one round ran")
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The network closed forms against check values computed independently of this code
+    /// (METHODS.md, "Arrangements beyond counter/parallel flow", values marked [C]).
+    #[test]
+    fn closed_forms_match_independent_check_values() {
+        let u = Mixing::Unmixed;
+        for (ntu, cr, reference) in [(1.0, 0.5, 0.54748983), (2.0, 1.0, 0.61424724), (4.0, 0.25, 0.93401982)] {
+            assert!((crossflow(ntu, cr, u, u) - reference).abs() < 1e-8, "crossflow unmixed {ntu} {cr}");
+        }
+        for (ntu, cr, reference) in [(1.0, 0.5, 0.53993956), (2.0, 1.0, 0.55680967), (4.0, 0.25, 0.86403874)] {
+            assert!((one_shell_pass(ntu, cr) - reference).abs() < 1e-8, "1-2 shell {ntu} {cr}");
+        }
+    }
+
+    /// Limits every arrangement must reach (Incropera Eq. 11.35a: Cr → 0 gives 1 − e^(−NTU);
+    /// one shell or pass in series is itself; Cr = 1 series form is the limit of the general one;
+    /// the one-line crossflow approximation is within 1 % of the exact series, as its use as an
+    /// engineering formula presumes — a fact of common practice).
+    #[test]
+    fn closed_forms_reach_their_limits() {
+        let (u, m) = (Mixing::Unmixed, Mixing::Mixed);
+        for ntu in [0.5, 2.0, 5.0] {
+            let limit = 1.0 - (-ntu as f64).exp();
+            for (a, b) in [(u, u), (u, m), (m, u), (m, m)] {
+                assert!((crossflow(ntu, 1e-9, a, b) - limit).abs() < 1e-7);
+            }
+            assert!((one_shell_pass(ntu, 1e-9) - limit).abs() < 1e-7);
+        }
+        assert_eq!(in_series(0.6, 0.5, 1), 0.6);
+        assert!((in_series(0.6, 1.0 - 1e-7, 3) - in_series(0.6, 1.0, 3)).abs() < 1e-6);
+        for (ntu, cr) in [(1.0, 0.5), (2.0, 1.0), (4.0, 0.25)] {
+            let approx = 1.0 - ((f64::powf(ntu, 0.22) / cr) * ((-cr * f64::powf(ntu, 0.78)).exp() - 1.0)).exp();
+            assert!((approx - crossflow(ntu, cr, u, u)).abs() < 0.01);
+        }
+        // Mixing can only lower ε: unmixed ≥ one mixed ≥ both mixed (Kays & London charts).
+        for (ntu, cr) in [(1.0, 0.5), (3.0, 0.8)] {
+            let (uu, um, mu, mm) = (crossflow(ntu, cr, u, u), crossflow(ntu, cr, u, m), crossflow(ntu, cr, m, u), crossflow(ntu, cr, m, m));
+            assert!(uu > um && uu > mu && um > mm && mu > mm);
+        }
+    }
+}

@@ -83,6 +83,9 @@ fn verify(json: bool) -> ExitCode {
                 if r.passed { "ok" } else { "FAIL" },
                 r.source
             );
+            if let Some(note) = &r.note {
+                outln!("    {note}");
+            }
         }
         outln!("{} rows, {} passed, {failed} failed", rows.len(), rows.len() - failed);
     }

@@ -39,6 +39,9 @@ pub struct Row {
     pub source: &'static str,
     /// |error| ≤ tolerance.
     pub passed: bool,
+    /// Why no value was computed (a solver error), if so.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub note: Option<String>,
 }
 
 /// A constant-property exchanger with fixed film coefficients and a thin plane wall, sized
@@ -139,7 +142,14 @@ fn checks() -> Vec<Check> {
     }
     for passes in [2, 3, 4] {
         for (ntu, cr) in [(2.0, 0.5), (4.0, 1.0)] {
-            exact(&format!("cross-counterflow, {passes} passes, mixed between passes, through stream mixed"), cross_counter(passes, Mixing::Mixed, true), ntu, cr, Side::Hot, SERIES);
+            exact(
+                &format!("cross-counterflow, {passes} passes, mixed between passes, through stream mixed"),
+                cross_counter(passes, Mixing::Mixed, true),
+                ntu,
+                cr,
+                Side::Hot,
+                SERIES,
+            );
         }
     }
     // Cr → 0: one stream's capacity 10⁶ times the other's, every arrangement.
@@ -151,7 +161,16 @@ fn checks() -> Vec<Check> {
     // Approximations, marked as such, with the tolerance their authors' accuracy allows.
     let (ntu, cr): (f64, f64) = (2.0, 1.0);
     let one_line = 1.0 - ((ntu.powf(0.22) / cr) * ((-cr * ntu.powf(0.78)).exp() - 1.0)).exp();
-    out.push((format!("crossflow, both unmixed, NTU {ntu}, Cr {cr} (approximate formula)"), crossflow(Mixing::Unmixed, Mixing::Unmixed), ntu, cr, Side::Hot, one_line, 0.01, APPROX));
+    out.push((
+        format!("crossflow, both unmixed, NTU {ntu}, Cr {cr} (approximate formula)"),
+        crossflow(Mixing::Unmixed, Mixing::Unmixed),
+        ntu,
+        cr,
+        Side::Hot,
+        one_line,
+        0.01,
+        APPROX,
+    ));
     let (ntu, cr): (f64, f64) = (2.0, 0.5);
     out.push((
         format!("shell-and-tube 1-4, NTU {ntu}, Cr {cr} (Eq. 11.30a, approximate for 4 passes)"),
@@ -185,9 +204,13 @@ fn effectiveness_on_grid(ex: &Exchanger, cells: usize) -> Result<f64, SolveError
     Ok(r.duty_W / r.max_duty_W)
 }
 
-fn row(case: String, quantity: &'static str, reference: f64, computed: f64, tolerance: f64, source: &'static str) -> Row {
+fn row(case: String, quantity: &'static str, reference: f64, computed: Result<f64, String>, tolerance: f64, source: &'static str) -> Row {
+    let (computed, note) = match computed {
+        Ok(v) => (v, None),
+        Err(e) => (f64::NAN, Some(e)),
+    };
     let error = computed - reference;
-    Row { case, quantity, reference, computed, error, tolerance, source, passed: error.abs() <= tolerance }
+    Row { case, quantity, reference, computed, error, tolerance, source, passed: error.abs() <= tolerance, note }
 }
 
 /// Run the whole suite. A solve that fails makes its row fail (computed = NaN), never the
@@ -196,12 +219,14 @@ pub fn run() -> Vec<Row> {
     let mut rows = Vec::new();
     for (case, arr, ntu, cr, min, reference, tolerance, source) in checks() {
         let ex = constant_exchanger(arr, ntu, cr, min);
-        let computed = effectiveness_on_grid(&ex, CELLS).unwrap_or(f64::NAN);
+        let computed = effectiveness_on_grid(&ex, CELLS).map_err(|e| e.to_string());
         rows.push(row(case, "effectiveness", reference, computed, tolerance, source));
     }
     for (label, arr) in arrangements() {
         let ex = constant_exchanger(arr, 2.0, 0.5, Side::Hot);
-        let order = grid_study(&ex, &SteadySettings::default(), CELLS / 4, 3).ok().and_then(|s| s.observed_order.duty).unwrap_or(f64::NAN);
+        let order = grid_study(&ex, &SteadySettings::default(), CELLS / 4, 3)
+            .map_err(|e| e.to_string())
+            .and_then(|s| s.observed_order.duty.ok_or_else(|| "differences at round-off: no observed order".to_string()));
         rows.push(row(format!("{label}, NTU 2, Cr 0.5, {}-{} cells", CELLS / 4, CELLS), "observed order", 2.0, order, 0.15, ORDER));
     }
     rows

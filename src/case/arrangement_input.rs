@@ -37,7 +37,13 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
     ];
     for (name, given, owner) in tables {
         if given && owner != kind {
-            c.fail(name, format!("is given but arrangement = \"{}\": the [{name}] table belongs to arrangement = \"{name}\"; remove it or change arrangement", kind.as_str()));
+            c.fail(
+                name,
+                format!(
+                    "is given but arrangement = \"{}\": the [{name}] table belongs to arrangement = \"{name}\"; remove it or change arrangement",
+                    kind.as_str()
+                ),
+            );
         }
     }
     let tube_bank = matches!(geometry, Geometry::TubeBank { .. });
@@ -47,7 +53,11 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
         ArrangementKind::Crossflow => {
             let t = f.crossflow.clone().unwrap_or_default();
             let across = count(c, "crossflow.cells_across", t.cells_across, cells, 1, 100_000, "cells along the cold stream's flow");
-            Arrangement::Network(Layout::Crossflow(Crossflow { hot: t.hot.unwrap_or(Mixing::Unmixed), cold: t.cold.unwrap_or(Mixing::Unmixed), cells_across: across }))
+            Arrangement::Network(Layout::Crossflow(Crossflow {
+                hot: t.hot.unwrap_or(Mixing::Unmixed),
+                cold: t.cold.unwrap_or(Mixing::Unmixed),
+                cells_across: across,
+            }))
         }
         ArrangementKind::CrossCounterflow => {
             let t = f.cross_counterflow.clone().unwrap_or_default();
@@ -58,7 +68,8 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
             let passes = count(c, "cross_counterflow.passes", t.passes, default_passes, 1, 1000, "passes of the passing stream");
             let passing = t.passing_stream.map(side).or_else(|| geometry.tube_side().filter(|_| tube_bank)).unwrap_or(Side::Cold);
             let default_across = if tube_bank { 1 } else { cells };
-            let across = count(c, "cross_counterflow.cells_across", t.cells_across, default_across, 1, 100_000, "cells along the through stream's flow in each pass");
+            let across =
+                count(c, "cross_counterflow.cells_across", t.cells_across, default_across, 1, 100_000, "cells along the through stream's flow in each pass");
             Arrangement::Network(Layout::CrossCounterflow(CrossCounterflow {
                 passes,
                 passing,
@@ -69,13 +80,19 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
         }
         ArrangementKind::ShellAndTube => match &f.shell_and_tube {
             None => {
-                c.fail("shell_and_tube", "is missing: add a [shell_and_tube] table with shell_side = \"hot\" or \"cold\" (and tube_passes, shells_in_series)".into());
+                c.fail(
+                    "shell_and_tube",
+                    "is missing: add a [shell_and_tube] table with shell_side = \"hot\" or \"cold\" (and tube_passes, shells_in_series)".into(),
+                );
                 Arrangement::Counterflow
             }
             Some(t) => {
                 let tube_passes = count(c, "shell_and_tube.tube_passes", t.tube_passes, 2, 1, 16, "tube passes per shell");
                 if tube_passes > 1 && tube_passes % 2 == 1 {
-                    c.fail("shell_and_tube.tube_passes", format!("{tube_passes} is not valid: use 1 or an even number (2, 4, 6, …) of tube passes, so the tubes leave at the end they entered"));
+                    c.fail(
+                        "shell_and_tube.tube_passes",
+                        format!("{tube_passes} is not valid: use 1 or an even number (2, 4, 6, …) of tube passes, so the tubes leave at the end they entered"),
+                    );
                 }
                 let shells = count(c, "shell_and_tube.shells_in_series", t.shells_in_series, 1, 1, 16, "shells in series");
                 Arrangement::Network(Layout::ShellAndTube(ShellAndTube { tube_passes, shells, shell_side: side(t.shell_side) }))
@@ -96,11 +113,17 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
             _ => {}
         }
         if scheme == Scheme::Tvd {
-            c.fail("solver.scheme", format!("\"tvd\" is available for counterflow and parallel only; with arrangement = \"{name}\" use \"trapezoidal\" (default) or \"upwind\""));
+            c.fail(
+                "solver.scheme",
+                format!("\"tvd\" is available for counterflow and parallel only; with arrangement = \"{name}\" use \"trapezoidal\" (default) or \"upwind\""),
+            );
         }
         let total = layout.cell_count(cells);
         if total > MAX_NETWORK_CELLS {
-            c.fail("solver.cells", format!("{cells} gives {total} cells in the {name} network, above the limit of {MAX_NETWORK_CELLS}: use fewer cells or fewer cells across"));
+            c.fail(
+                "solver.cells",
+                format!("{cells} gives {total} cells in the {name} network, above the limit of {MAX_NETWORK_CELLS}: use fewer cells or fewer cells across"),
+            );
         }
         if f.transient.is_some() {
             c.fail("transient", format!("transient runs are available for counterflow and parallel arrangements; with arrangement = \"{name}\" remove [transient] and rate the steady state"));

@@ -88,10 +88,30 @@ pub struct ShellAndTube {
 pub enum Feed {
     /// The stream's inlet.
     Inlet,
-    /// The outlet of this cell.
-    Cell(usize),
-    /// This mixer's mixed-mean temperature.
-    Mixer(usize),
+    /// This stream node's temperature.
+    Node(usize),
+}
+
+/// What fixes a stream node's temperature.
+#[derive(Debug, Clone, PartialEq)]
+pub enum NodeKind {
+    /// The outlet of the cells that name it as theirs: one cell for an unmixed lane, all the
+    /// cells of a row across the other stream's flow for a mixed stream (they then share one
+    /// temperature, as a mixed stream has, and one energy balance).
+    Cells,
+    /// A header: the flow-weighted mixed-mean (by enthalpy) of other nodes.
+    Mixer(Vec<usize>),
+}
+
+/// A temperature of one stream: an unknown of the network.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Node {
+    /// The stream.
+    pub side: Side,
+    /// What fixes it.
+    pub kind: NodeKind,
+    /// Share of the stream's flow through the node.
+    pub flow_share: f64,
 }
 
 /// One cell of the network.
@@ -99,6 +119,8 @@ pub enum Feed {
 pub struct NetCell {
     /// Where each stream (hot, cold) comes from.
     pub feed: [Feed; 2],
+    /// The node each stream (hot, cold) leaves into.
+    pub out: [usize; 2],
     /// Share of each stream's mass flow through the cell.
     pub flow_share: [f64; 2],
     /// Share of the exchanger's heat-transfer area.
@@ -109,27 +131,30 @@ pub struct NetCell {
     pub position: [f64; 2],
 }
 
-/// A mixer: the cells whose outlets of one stream are mixed (by flow-weighted enthalpy).
-#[derive(Debug, Clone, PartialEq)]
-pub struct Mixer {
-    /// The stream mixed.
-    pub side: Side,
-    /// The cells mixed.
-    pub cells: Vec<usize>,
-}
-
-/// A built network; a constructed value is consistent (every feed refers to an earlier-built
-/// cell or mixer of the right stream).
+/// A built network; a constructed value is consistent (every feed and outlet names a node
+/// of its own stream, and flows add up).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Network {
     /// Cells.
     pub cells: Vec<NetCell>,
-    /// Mixers.
-    pub mixers: Vec<Mixer>,
-    /// Where each stream (hot, cold) leaves.
-    pub outlet: [Feed; 2],
+    /// Stream nodes.
+    pub nodes: Vec<Node>,
+    /// The node each stream (hot, cold) leaves the exchanger from.
+    pub outlet: [usize; 2],
     /// Plot grid: (columns, rows) of the cells' `position` lattice.
     pub plot_shape: (usize, usize),
+}
+
+impl Network {
+    /// The nodes whose temperatures leave through a stream's outlet (its lanes across the
+    /// outlet face): the sources of an outlet header, else the outlet node itself.
+    pub fn outlet_lanes(&self, side: Side) -> Vec<usize> {
+        let n = self.outlet[side.index()];
+        match &self.nodes[n].kind {
+            NodeKind::Mixer(sources) => sources.clone(),
+            NodeKind::Cells => vec![n],
+        }
+    }
 }
 
 /// The arrangements that are cell networks.
@@ -184,237 +209,236 @@ impl Layout {
     }
 }
 
-/// Accumulates cells and mixers.
+/// Accumulates cells and nodes.
 #[derive(Default)]
 struct Builder {
     cells: Vec<NetCell>,
-    mixers: Vec<Mixer>,
+    nodes: Vec<Node>,
 }
 
 impl Builder {
-    /// A feed from a group of cells: the cell itself for a group of one, else a mixer.
-    fn mix(&mut self, side: Side, cells: Vec<usize>) -> Feed {
-        if cells.len() == 1 {
-            return Feed::Cell(cells[0]);
+    /// A new cell-outlet node.
+    fn node(&mut self, side: Side, flow_share: f64) -> usize {
+        self.nodes.push(Node { side, kind: NodeKind::Cells, flow_share });
+        self.nodes.len() - 1
+    }
+
+    /// A header mixing `sources` (a single source needs none).
+    fn mix(&mut self, side: Side, sources: Vec<usize>) -> usize {
+        if sources.len() == 1 {
+            return sources[0];
         }
-        self.mixers.push(Mixer { side, cells });
-        Feed::Mixer(self.mixers.len() - 1)
+        let flow_share = sources.iter().map(|&n| self.nodes[n].flow_share).sum();
+        self.nodes.push(Node { side, kind: NodeKind::Mixer(sources), flow_share });
+        self.nodes.len() - 1
+    }
+
+    fn finish(self, outlet: [usize; 2], plot_shape: (usize, usize)) -> Network {
+        Network { cells: self.cells, nodes: self.nodes, outlet, plot_shape }
     }
 }
 
-/// Index of cell (i, j) in a row-major nx × ny block.
-fn at(ny: usize, i: usize, j: usize) -> usize {
-    i * ny + j
+/// Nodes of one stream over a lattice of `rows × lanes` (rows along its flow, lanes across
+/// it): one per cell when unmixed, one per row shared by its lanes when mixed.
+fn lane_nodes(b: &mut Builder, side: Side, mixing: Mixing, rows: usize, lanes: usize) -> Vec<Vec<usize>> {
+    (0..rows)
+        .map(|_| match mixing {
+            Mixing::Unmixed => (0..lanes).map(|_| b.node(side, 1.0 / lanes as f64)).collect(),
+            Mixing::Mixed => vec![b.node(side, 1.0); lanes],
+        })
+        .collect()
+}
+
+fn feed(node: Option<usize>) -> Feed {
+    node.map_or(Feed::Inlet, Feed::Node)
 }
 
 fn crossflow(c: &Crossflow, nx: usize) -> Network {
     let ny = c.cells_across.max(1);
     let mut b = Builder::default();
-    let area = 1.0 / (nx * ny) as f64;
-    // Hot flows along i (rows j), cold along j (columns i). A mixed stream's cells at one
-    // position along its flow all take the mixed-mean of the previous position's outlets.
-    let mut hot_mixers = Vec::with_capacity(nx);
-    if c.hot == Mixing::Mixed {
-        for i in 0..nx.saturating_sub(1) {
-            let f = b.mix(Side::Hot, (0..ny).map(|j| at(ny, i, j)).collect());
-            hot_mixers.push(f);
-        }
-    }
-    let mut cold_mixers = Vec::with_capacity(ny);
-    if c.cold == Mixing::Mixed {
-        for j in 0..ny.saturating_sub(1) {
-            let f = b.mix(Side::Cold, (0..nx).map(|i| at(ny, i, j)).collect());
-            cold_mixers.push(f);
-        }
-    }
+    // Hot flows along i (lanes j), cold along j (lanes i).
+    let hot = lane_nodes(&mut b, Side::Hot, c.hot, nx, ny);
+    let cold = lane_nodes(&mut b, Side::Cold, c.cold, ny, nx);
     for i in 0..nx {
         for j in 0..ny {
-            let hot = match (i, c.hot) {
-                (0, _) => Feed::Inlet,
-                (_, Mixing::Unmixed) => Feed::Cell(at(ny, i - 1, j)),
-                (_, Mixing::Mixed) => hot_mixers[i - 1],
-            };
-            let cold = match (j, c.cold) {
-                (0, _) => Feed::Inlet,
-                (_, Mixing::Unmixed) => Feed::Cell(at(ny, i, j - 1)),
-                (_, Mixing::Mixed) => cold_mixers[j - 1],
-            };
             b.cells.push(NetCell {
-                feed: [hot, cold],
+                feed: [feed(i.checked_sub(1).map(|p| hot[p][j])), feed(j.checked_sub(1).map(|p| cold[p][i]))],
+                out: [hot[i][j], cold[j][i]],
                 flow_share: [1.0 / ny as f64, 1.0 / nx as f64],
-                area_share: area,
+                area_share: 1.0 / (nx * ny) as f64,
                 index: [i, j, 0],
                 position: [(i as f64 + 0.5) / nx as f64, (j as f64 + 0.5) / ny as f64],
             });
         }
     }
-    let hot_out = b.mix(Side::Hot, (0..ny).map(|j| at(ny, nx - 1, j)).collect());
-    let cold_out = b.mix(Side::Cold, (0..nx).map(|i| at(ny, i, ny - 1)).collect());
-    Network { cells: b.cells, mixers: b.mixers, outlet: [hot_out, cold_out], plot_shape: (nx, ny) }
+    let hot_out = b.mix(Side::Hot, dedup(&hot[nx - 1]));
+    let cold_out = b.mix(Side::Cold, dedup(&cold[ny - 1]));
+    b.finish([hot_out, cold_out], (nx, ny))
+}
+
+/// Distinct nodes, in order (a mixed row lists its one node once per lane).
+fn dedup(nodes: &[usize]) -> Vec<usize> {
+    let mut out: Vec<usize> = Vec::with_capacity(nodes.len());
+    for &n in nodes {
+        if !out.contains(&n) {
+            out.push(n);
+        }
+    }
+    out
 }
 
 fn cross_counterflow(c: &CrossCounterflow, nw: usize) -> Network {
     let (np, nd) = (c.passes.max(1), c.cells_across.max(1));
-    let (p, t) = (c.passing.index(), c.passing.other().index());
+    let (ps, ts) = (c.passing, c.passing.other());
     let mut b = Builder::default();
-    let area = 1.0 / (np * nw * nd) as f64;
     // Cell (q, w, d): pass q, position w along the pass, depth d within the pass. Pass q
-    // flows towards +w when q is even. The through stream meets pass np − 1 first.
-    let id = |q: usize, w: usize, d: usize| (q * nw + w) * nd + d;
-    let upstream_w = |q: usize, k: usize| if q % 2 == 0 { k } else { nw - 1 - k };
-    // Cells are pushed in index order, so feeds may name any cell; mixers go first.
-    let mut through_mixer = vec![Feed::Inlet; np * nd];
-    if c.through == Mixing::Mixed {
-        for q in 0..np {
-            for d in 0..nd {
-                through_mixer[q * nd + d] = b.mix(c.passing.other(), (0..nw).map(|w| id(q, w, d)).collect());
-            }
-        }
+    // flows towards +w when q is even (serpentine). The through stream meets pass np − 1
+    // first, so the arrangement is counterflow overall.
+    // Passing stream: lanes are the depth cells d, rows the steps along the pass.
+    let passing: Vec<Vec<Vec<usize>>> = (0..np).map(|_| lane_nodes(&mut b, ps, Mixing::Unmixed, nw, nd)).collect();
+    // Through stream: rows are (pass, depth) in its order of travel, lanes the positions w.
+    let through: Vec<Vec<Vec<usize>>> = (0..np).map(|_| lane_nodes(&mut b, ts, c.through, nd, nw)).collect();
+    let mut headers = Vec::with_capacity(np);
+    for pass in &passing {
+        let last: Vec<usize> = pass[nw - 1].clone();
+        headers.push(if c.mixed_between_passes { Some(b.mix(ps, last)) } else { None });
     }
-    let mut pass_header = vec![Feed::Inlet; np];
-    if c.mixed_between_passes {
-        for (q, header) in pass_header.iter_mut().enumerate().take(np - 1) {
-            let last = upstream_w(q, nw - 1);
-            *header = b.mix(c.passing, (0..nd).map(|d| id(q, last, d)).collect());
-        }
+    let id_order: Vec<(usize, usize, usize)> = (0..np).flat_map(|q| (0..nw).flat_map(move |w| (0..nd).map(move |d| (q, w, d)))).collect();
+    for (q, w, d) in id_order {
+        let step = if q.is_multiple_of(2) { w } else { nw - 1 - w };
+        let passing_in = if step > 0 {
+            Some(passing[q][step - 1][d])
+        } else if q == 0 {
+            None
+        } else {
+            Some(headers[q - 1].unwrap_or(passing[q - 1][nw - 1][d]))
+        };
+        let through_in = if d > 0 {
+            Some(through[q][d - 1][w])
+        } else if q + 1 < np {
+            Some(through[q + 1][nd - 1][w])
+        } else {
+            None
+        };
+        let mut f = [Feed::Inlet; 2];
+        let mut out = [0; 2];
+        let mut flow_share = [0.0; 2];
+        f[ps.index()] = feed(passing_in);
+        f[ts.index()] = feed(through_in);
+        out[ps.index()] = passing[q][step][d];
+        out[ts.index()] = through[q][d][w];
+        flow_share[ps.index()] = 1.0 / nd as f64;
+        flow_share[ts.index()] = 1.0 / nw as f64;
+        // Plot: w across, depth downwards in the through stream's direction of travel.
+        let depth = (np - 1 - q) * nd + d;
+        b.cells.push(NetCell {
+            feed: f,
+            out,
+            flow_share,
+            area_share: 1.0 / (np * nw * nd) as f64,
+            index: [w, d, q],
+            position: [(w as f64 + 0.5) / nw as f64, (depth as f64 + 0.5) / (np * nd) as f64],
+        });
     }
-    for q in 0..np {
-        for w in 0..nw {
-            for d in 0..nd {
-                let mut feed = [Feed::Inlet; 2];
-                // Passing stream: along the pass, then from the previous pass.
-                let k = if q % 2 == 0 { w } else { nw - 1 - w }; // steps travelled in the pass
-                feed[p] = if k > 0 {
-                    Feed::Cell(id(q, upstream_w(q, k - 1), d))
-                } else if q == 0 {
-                    Feed::Inlet
-                } else if c.mixed_between_passes {
-                    pass_header[q - 1]
-                } else {
-                    Feed::Cell(id(q - 1, upstream_w(q - 1, nw - 1), d))
-                };
-                // Through stream: from the previous depth cell of this pass, or the last of the
-                // next pass up its path.
-                let (uq, ud) = if d > 0 { (q, d - 1) } else { (q + 1, nd - 1) };
-                feed[t] = if d == 0 && q + 1 == np {
-                    Feed::Inlet
-                } else {
-                    match c.through {
-                        Mixing::Unmixed => Feed::Cell(id(uq, w, ud)),
-                        Mixing::Mixed => through_mixer[uq * nd + ud],
-                    }
-                };
-                let mut flow_share = [0.0; 2];
-                flow_share[p] = 1.0 / nd as f64;
-                flow_share[t] = 1.0 / nw as f64;
-                // Plot: w across, depth downwards in the through stream's direction.
-                let depth = (np - 1 - q) * nd + d;
-                b.cells.push(NetCell {
-                    feed,
-                    flow_share,
-                    area_share: area,
-                    index: [w, d, q],
-                    position: [(w as f64 + 0.5) / nw as f64, (depth as f64 + 0.5) / (np * nd) as f64],
-                });
-            }
-        }
-    }
-    let mut outlet = [Feed::Inlet; 2];
-    let last = upstream_w(np - 1, nw - 1);
-    outlet[p] = b.mix(c.passing, (0..nd).map(|d| id(np - 1, last, d)).collect());
-    outlet[t] = b.mix(c.passing.other(), (0..nw).map(|w| id(0, w, nd - 1)).collect());
-    Network { cells: b.cells, mixers: b.mixers, outlet, plot_shape: (nw, np * nd) }
+    let mut outlet = [0; 2];
+    outlet[ps.index()] = headers[np - 1].unwrap_or_else(|| b.mix(ps, (0..nd).map(|d| passing[np - 1][nw - 1][d]).collect()));
+    outlet[ts.index()] = b.mix(ts, dedup(&through[0][nd - 1]));
+    b.finish(outlet, (nw, np * nd))
 }
 
 fn shell_and_tube(s: &ShellAndTube, n: usize) -> Network {
     let (np, ns) = (s.tube_passes.max(1), s.shells.max(1));
-    let (sh, tu) = (s.shell_side.index(), s.shell_side.other().index());
+    let (sh, tu) = (s.shell_side, s.shell_side.other());
     let mut b = Builder::default();
-    let area = 1.0 / (ns * np * n) as f64;
-    // Cell (k, p, i): shell k (the tube stream's order), pass p, axial station i (0 at the
-    // shell stream's inlet end). The shell stream runs shell ns − 1 → 0, i = 0 → n − 1.
-    let id = |k: usize, p: usize, i: usize| (k * np + p) * n + i;
-    // Station mixers of the shell stream: the mixed-mean over the passes at (k, i).
-    let mut station = vec![Feed::Inlet; ns * n];
-    for k in 0..ns {
-        for i in 0..n {
-            station[k * n + i] = b.mix(s.shell_side, (0..np).map(|p| id(k, p, i)).collect());
-        }
-    }
-    // Tube pass p runs against the shell flow (i decreasing) when p is even.
-    let station_of = |p: usize, step: usize| if p % 2 == 0 { n - 1 - step } else { step };
+    // Cell (k, p, i): shell k (in the tube stream's order), pass p, axial station i (0 at the
+    // shell stream's inlet end). The shell stream runs shell ns − 1 → 0, i = 0 → n − 1, and
+    // is one temperature per station (mixed across the passes).
+    let station: Vec<Vec<usize>> = (0..ns).map(|_| (0..n).map(|_| b.node(sh, 1.0)).collect()).collect();
+    // Tube pass p runs against the shell flow (i decreasing) when p is even; its nodes by step.
+    let tube: Vec<Vec<Vec<usize>>> = (0..ns).map(|_| (0..np).map(|_| (0..n).map(|_| b.node(tu, 1.0)).collect()).collect()).collect();
     for k in 0..ns {
         for p in 0..np {
             for i in 0..n {
-                let mut feed = [Feed::Inlet; 2];
-                feed[sh] = if i > 0 {
-                    station[k * n + i - 1]
+                let shell_in = if i > 0 {
+                    Some(station[k][i - 1])
                 } else if k + 1 < ns {
-                    station[(k + 1) * n + n - 1]
+                    Some(station[k + 1][n - 1])
                 } else {
-                    Feed::Inlet
+                    None
                 };
-                let step = if p % 2 == 0 { n - 1 - i } else { i };
-                feed[tu] = if step > 0 {
-                    Feed::Cell(id(k, p, station_of(p, step - 1)))
+                let step = if p.is_multiple_of(2) { n - 1 - i } else { i };
+                let tube_in = if step > 0 {
+                    Some(tube[k][p][step - 1])
                 } else if p > 0 {
-                    Feed::Cell(id(k, p - 1, station_of(p - 1, n - 1)))
+                    Some(tube[k][p - 1][n - 1])
                 } else if k > 0 {
-                    Feed::Cell(id(k - 1, np - 1, station_of(np - 1, n - 1)))
+                    Some(tube[k - 1][np - 1][n - 1])
                 } else {
-                    Feed::Inlet
+                    None
                 };
+                let mut f = [Feed::Inlet; 2];
+                let mut out = [0; 2];
                 let mut flow_share = [0.0; 2];
-                flow_share[sh] = 1.0 / np as f64;
-                flow_share[tu] = 1.0;
+                f[sh.index()] = feed(shell_in);
+                f[tu.index()] = feed(tube_in);
+                out[sh.index()] = station[k][i];
+                out[tu.index()] = tube[k][p][step];
+                flow_share[sh.index()] = 1.0 / np as f64;
+                flow_share[tu.index()] = 1.0;
+                let column = (ns - 1 - k) * n + i;
                 b.cells.push(NetCell {
-                    feed,
+                    feed: f,
+                    out,
                     flow_share,
-                    area_share: area,
+                    area_share: 1.0 / (ns * np * n) as f64,
                     index: [i, p, k],
-                    position: [((ns - 1 - k) * n + i) as f64 / (ns * n) as f64 + 0.5 / (ns * n) as f64, (p as f64 + 0.5) / np as f64],
+                    position: [(column as f64 + 0.5) / (ns * n) as f64, (p as f64 + 0.5) / np as f64],
                 });
             }
         }
     }
-    let mut outlet = [Feed::Inlet; 2];
-    outlet[sh] = station[n - 1];
-    outlet[tu] = Feed::Cell(id(ns - 1, np - 1, station_of(np - 1, n - 1)));
-    Network { cells: b.cells, mixers: b.mixers, outlet, plot_shape: (ns * n, np) }
+    let mut outlet = [0; 2];
+    outlet[sh.index()] = station[0][n - 1];
+    outlet[tu.index()] = tube[ns - 1][np - 1][n - 1];
+    b.finish(outlet, (ns * n, np))
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    /// Every stream's flow shares add up to the whole flow along any cut: each cell's
-    /// outflow goes to exactly one place, and each stream's inlet cells carry all of it.
+    /// Flow is conserved along every path: what each node passes on (to the cells it feeds,
+    /// headers and the outlet) is what flows through it, and the inlet cells take the whole
+    /// stream.
     fn check_conservation(net: &Network) {
-        for s in 0..2 {
+        let total_area: f64 = net.cells.iter().map(|c| c.area_share).sum();
+        assert!((total_area - 1.0).abs() < 1e-12);
+        for side in Side::BOTH {
+            let s = side.index();
             let inlet: f64 = net.cells.iter().filter(|c| c.feed[s] == Feed::Inlet).map(|c| c.flow_share[s]).sum();
-            assert!((inlet - 1.0).abs() < 1e-12, "stream {s} inlet share {inlet}");
-            let total_area: f64 = net.cells.iter().map(|c| c.area_share).sum();
-            assert!((total_area - 1.0).abs() < 1e-12);
-            // What a mixer or a cell passes on is what its consumers take.
-            let mut taken = vec![0.0; net.mixers.len()];
-            let mut cell_taken = vec![0.0; net.cells.len()];
-            let consumers = net.cells.iter().map(|c| (c.feed[s], c.flow_share[s])).chain(std::iter::once((net.outlet[s], 1.0)));
-            for (feed, share) in consumers {
-                match feed {
-                    Feed::Mixer(m) => taken[m] += share,
-                    Feed::Cell(k) => cell_taken[k] += share,
-                    Feed::Inlet => {}
+            assert!((inlet - 1.0).abs() < 1e-12, "{side} inlet share {inlet}");
+            let mut into = vec![0.0; net.nodes.len()];
+            let mut taken = vec![0.0; net.nodes.len()];
+            for c in &net.cells {
+                assert_eq!(net.nodes[c.out[s]].side, side);
+                into[c.out[s]] += c.flow_share[s];
+                if let Feed::Node(n) = c.feed[s] {
+                    assert_eq!(net.nodes[n].side, side);
+                    taken[n] += c.flow_share[s];
                 }
             }
-            for (m, mixer) in net.mixers.iter().enumerate().filter(|(_, m)| m.side.index() == s) {
-                let given: f64 = mixer.cells.iter().map(|&k| net.cells[k].flow_share[s]).sum();
-                assert!((given - taken[m]).abs() < 1e-12, "stream {s} mixer {m}: {given} in, {} out", taken[m]);
-                for &k in &mixer.cells {
-                    cell_taken[k] += net.cells[k].flow_share[s];
+            for node in &net.nodes {
+                if let NodeKind::Mixer(src) = &node.kind {
+                    for &m in src {
+                        taken[m] += net.nodes[m].flow_share;
+                    }
                 }
             }
-            for (k, c) in net.cells.iter().enumerate() {
-                assert!((cell_taken[k] - c.flow_share[s]).abs() < 1e-12, "stream {s} cell {k}: passes on {} of {}", cell_taken[k], c.flow_share[s]);
+            taken[net.outlet[s]] += 1.0;
+            for (n, node) in net.nodes.iter().enumerate().filter(|(_, n)| n.side == side) {
+                let through = if node.kind == NodeKind::Cells { into[n] } else { node.flow_share };
+                assert!((through - node.flow_share).abs() < 1e-12, "{side} node {n}: {through} in, share {}", node.flow_share);
+                assert!((taken[n] - node.flow_share).abs() < 1e-12, "{side} node {n}: {} taken of {}", taken[n], node.flow_share);
             }
         }
     }

@@ -108,10 +108,7 @@ impl<'a, 'v> ser::Serializer for &'a mut Walker<'v> {
     type SerializeStruct = Compound<'a, 'v>;
     type SerializeStructVariant = Compound<'a, 'v>;
 
-    ignore!(serialize_bool(bool), serialize_char(char),
-        serialize_str(&str),
-        serialize_bytes(&[u8]),
-    );
+    ignore!(serialize_bool(bool), serialize_char(char), serialize_str(&str), serialize_bytes(&[u8]),);
     fn serialize_i64(self, v: i64) -> Result<(), Stop> {
         self.whole(v as i128)
     }

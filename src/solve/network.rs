@@ -1,10 +1,11 @@
 //! Steady state of a cell network (crossflow, passes, shells): Newton's method with a sparse
 //! LU of the Jacobian.
 //!
-//! Unknowns: per cell the hot and cold temperatures where each leaves the cell and the wall
-//! temperature, then one mixed-mean temperature per mixer (see [`crate::model::network`]).
-//! Residuals: each cell's three steady balances from the one cell model
-//! ([`Exchanger::cell_shared_with_jacobian`]) and each mixer's enthalpy balance. The
+//! Unknowns: one temperature per stream node (a cell's outlet, a mixed stream's row shared by
+//! its cells, or a header; see [`crate::model::network`]), then the wall temperature of each
+//! cell. Residuals: for each cell-outlet node the stream balances of the cells leaving into it
+//! (from the one cell model, [`Exchanger::cell_shared_with_jacobian`]), summed; for each
+//! header its enthalpy balance; for each cell its wall balance. The
 //! sparsity pattern never changes, so it is analysed once (faer's column-approximate-minimum-
 //! degree ordering, which keeps the fill of a 2-D grid near linear in the cells) and only
 //! the numeric factorisation is repeated. Line search and convergence test as in the axial
@@ -13,6 +14,7 @@
 use super::checks::suggested_cells;
 use super::error::SolveError;
 use super::steady::{convergence_target, stopped_flow_temperature, Observer, SteadySettings};
+use crate::model::network::NodeKind;
 use crate::model::{CellTemps, Exchanger, Feed, Layout, Network, Scheme, Side};
 use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
 use faer::sparse::{Pair, SparseColMat, SymbolicSparseColMat};
@@ -28,10 +30,10 @@ pub struct NetworkSolution {
     pub network: Network,
     /// Cells along the first direction (`[solver] cells`).
     pub cells: usize,
-    /// Per cell: hot and cold temperature leaving it, wall temperature, °C.
-    pub cell_c: Vec<[f64; 3]>,
-    /// Mixed-mean temperature of each mixer, °C.
-    pub mixer_c: Vec<f64>,
+    /// Temperature of each stream node, °C.
+    pub node_c: Vec<f64>,
+    /// Wall temperature of each cell, °C.
+    pub wall_c: Vec<f64>,
     /// Inlet temperatures (hot, cold) the solution was found for, °C.
     pub inlet_c: [f64; 2],
     /// Scheme.
@@ -45,17 +47,9 @@ pub struct NetworkSolution {
 }
 
 impl NetworkSolution {
-    fn feed_value(&self, feed: Feed, side: usize) -> f64 {
-        match feed {
-            Feed::Inlet => self.inlet_c[side],
-            Feed::Cell(k) => self.cell_c[k][side],
-            Feed::Mixer(m) => self.mixer_c[m],
-        }
-    }
-
     /// Temperatures seen by cell `k`.
     pub fn cell_temps(&self, k: usize) -> CellTemps {
-        temps(&self.network, self.scheme, self.inlet_c, &self.cell_c, &self.mixer_c, k)
+        temps(&self.network, self.scheme, self.inlet_c, &self.node_c, &self.wall_c, k)
     }
 
     /// Equivalent length of cell `k` (its area share of the exchanger length), m.
@@ -65,34 +59,29 @@ impl NetworkSolution {
 
     /// A stream's mixed-mean outlet, °C.
     pub fn outlet_c(&self, side: Side) -> f64 {
-        self.feed_value(self.network.outlet[side.index()], side.index())
+        self.node_c[self.network.outlet[side.index()]]
     }
 
-    /// The temperatures of a stream leaving the exchanger, one per outlet lane (hot, cold).
+    /// The temperatures of a stream leaving the exchanger, one per lane of its outlet face.
     pub fn outlet_lanes_c(&self, side: Side) -> Vec<f64> {
-        let s = side.index();
-        match self.network.outlet[s] {
-            Feed::Mixer(m) => self.network.mixers[m].cells.iter().map(|&k| self.cell_c[k][s]).collect(),
-            other => vec![self.feed_value(other, s)],
-        }
+        self.network.outlet_lanes(side).iter().map(|&n| self.node_c[n]).collect()
     }
 }
 
 /// Build cell `k`'s temperatures from the unknowns.
-fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], x: &[[f64; 3]], mixers: &[f64], k: usize) -> CellTemps {
+fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], nodes: &[f64], walls: &[f64], k: usize) -> CellTemps {
     let c = &net.cells[k];
     let value = |feed: Feed, s: usize| match feed {
         Feed::Inlet => inlet[s],
-        Feed::Cell(j) => x[j][s],
-        Feed::Mixer(m) => mixers[m],
+        Feed::Node(n) => nodes[n],
     };
     let (hot_in, cold_in) = (value(c.feed[0], 0), value(c.feed[1], 1));
-    let [hot_out, cold_out, wall] = x[k];
+    let (hot_out, cold_out) = (nodes[c.out[0]], nodes[c.out[1]]);
     let bulk = |t_in: f64, t_out: f64| if scheme == Scheme::Upwind { t_out } else { 0.5 * (t_in + t_out) };
-    CellTemps { hot_in, hot_out, hot_bulk: bulk(hot_in, hot_out), cold_in, cold_out, cold_bulk: bulk(cold_in, cold_out), wall }
+    CellTemps { hot_in, hot_out, hot_bulk: bulk(hot_in, hot_out), cold_in, cold_out, cold_bulk: bulk(cold_in, cold_out), wall: walls[k] }
 }
 
-/// The system: network, exchanger and the vector layout (cells first, then mixers).
+/// The system: network, exchanger and the vector layout (nodes first, then walls).
 struct System<'a> {
     ex: &'a Exchanger,
     net: &'a Network,
@@ -100,94 +89,95 @@ struct System<'a> {
 }
 
 impl System<'_> {
-    fn n_cells(&self) -> usize {
-        self.net.cells.len()
+    fn n_nodes(&self) -> usize {
+        self.net.nodes.len()
     }
 
     fn len(&self) -> usize {
-        3 * self.n_cells() + self.net.mixers.len()
+        self.n_nodes() + self.net.cells.len()
     }
 
-    fn split<'z>(&self, z: &'z [f64]) -> (&'z [[f64; 3]], &'z [f64]) {
-        let (cells, mixers) = z.split_at(3 * self.n_cells());
-        (cells.as_chunks::<3>().0, mixers)
-    }
-
-    /// Column of a feed for stream `s` (None for the inlet).
-    fn column(&self, feed: Feed, s: usize) -> Option<usize> {
-        match feed {
-            Feed::Inlet => None,
-            Feed::Cell(j) => Some(3 * j + s),
-            Feed::Mixer(m) => Some(3 * self.n_cells() + m),
-        }
+    fn split<'z>(&self, z: &'z [f64]) -> (&'z [f64], &'z [f64]) {
+        z.split_at(self.n_nodes())
     }
 
     fn mass_flow(&self, side: Side) -> f64 {
         self.ex.stream(side).mass_flow_kg_s
     }
 
+    fn dx(&self, k: usize) -> f64 {
+        self.ex.length_m * self.net.cells[k].area_share
+    }
+
     /// Fill residuals (W); return Σ|r|.
     fn residuals(&self, z: &[f64], r: &mut [f64]) -> f64 {
-        let (x, mixers) = self.split(z);
-        let nc = self.n_cells();
-        for k in 0..nc {
-            let c = &self.net.cells[k];
-            let t = temps(self.net, self.ex.scheme, self.inlet, x, mixers, k);
-            let res = self.ex.cell_shared(self.ex.length_m * c.area_share, c.flow_share, &t).balance.steady_residual();
-            r[3 * k..3 * k + 3].copy_from_slice(&res);
+        let (nodes, walls) = self.split(z);
+        let nn = self.n_nodes();
+        r.fill(0.0);
+        for (k, c) in self.net.cells.iter().enumerate() {
+            let t = temps(self.net, self.ex.scheme, self.inlet, nodes, walls, k);
+            let res = self.ex.cell_shared(self.dx(k), c.flow_share, &t).balance.steady_residual();
+            r[c.out[0]] += res[0];
+            r[c.out[1]] += res[1];
+            r[nn + k] = res[2];
         }
-        for (m, mixer) in self.net.mixers.iter().enumerate() {
-            let s = mixer.side.index();
-            let fluid = &self.ex.stream(mixer.side).fluid;
-            let (mut share, mut h) = (0.0, 0.0);
-            for &k in &mixer.cells {
-                let w = self.net.cells[k].flow_share[s];
-                share += w;
-                h += w * fluid.enthalpy(x[k][s]);
+        for (n, node) in self.net.nodes.iter().enumerate() {
+            if let NodeKind::Mixer(sources) = &node.kind {
+                let fluid = &self.ex.stream(node.side).fluid;
+                let h: f64 = sources.iter().map(|&m| self.net.nodes[m].flow_share * fluid.enthalpy(nodes[m])).sum();
+                r[n] = self.mass_flow(node.side) * (node.flow_share * fluid.enthalpy(nodes[n]) - h);
             }
-            r[3 * nc + m] = self.mass_flow(mixer.side) * (share * fluid.enthalpy(mixers[m]) - h);
         }
         r.iter().map(|v| v.abs()).sum()
     }
 
-    /// The Jacobian's sparsity pattern, in the order [`System::jacobian_values`] fills values.
+    /// Rows (hot node, cold node, wall) and columns (hot in, hot out, cold in, cold out,
+    /// wall) of a cell's entries.
+    fn cell_rows_columns(&self, k: usize) -> ([usize; 3], [Option<usize>; 5]) {
+        let c = &self.net.cells[k];
+        let col = |f: Feed| match f {
+            Feed::Inlet => None,
+            Feed::Node(n) => Some(n),
+        };
+        let wall = self.n_nodes() + k;
+        ([c.out[0], c.out[1], wall], [col(c.feed[0]), Some(c.out[0]), col(c.feed[1]), Some(c.out[1]), Some(wall)])
+    }
+
+    /// The Jacobian's sparsity pattern, in the order [`System::jacobian_values`] fills values
+    /// (repeated entries, as from the cells of one mixed row, are summed).
     fn pattern(&self) -> Vec<Pair<usize, usize>> {
         let mut p = Vec::new();
-        for (k, c) in self.net.cells.iter().enumerate() {
-            let cols = self.cell_columns(k, c);
-            for row in 0..3 {
+        for k in 0..self.net.cells.len() {
+            let (rows, cols) = self.cell_rows_columns(k);
+            for row in rows {
                 for col in cols.iter().flatten() {
-                    p.push(Pair { row: 3 * k + row, col: *col });
+                    p.push(Pair { row, col: *col });
                 }
             }
         }
-        let nc = self.n_cells();
-        for (m, mixer) in self.net.mixers.iter().enumerate() {
-            p.push(Pair { row: 3 * nc + m, col: 3 * nc + m });
-            for &k in &mixer.cells {
-                p.push(Pair { row: 3 * nc + m, col: 3 * k + mixer.side.index() });
+        for (n, node) in self.net.nodes.iter().enumerate() {
+            if let NodeKind::Mixer(sources) = &node.kind {
+                p.push(Pair { row: n, col: n });
+                for &m in sources {
+                    p.push(Pair { row: n, col: m });
+                }
             }
         }
         p
     }
 
-    /// Columns of a cell's five temperatures: hot in, hot out, cold in, cold out, wall.
-    fn cell_columns(&self, k: usize, c: &crate::model::network::NetCell) -> [Option<usize>; 5] {
-        [self.column(c.feed[0], 0), Some(3 * k), self.column(c.feed[1], 1), Some(3 * k + 1), Some(3 * k + 2)]
-    }
-
     /// Jacobian values in pattern order.
     fn jacobian_values(&self, z: &[f64], values: &mut Vec<f64>) {
         values.clear();
-        let (x, mixers) = self.split(z);
+        let (nodes, walls) = self.split(z);
+        // The bulk is ½(in + out), or the outlet with upwinding.
+        let (w_in, w_out) = if self.ex.scheme == Scheme::Upwind { (0.0, 1.0) } else { (0.5, 0.5) };
         for (k, c) in self.net.cells.iter().enumerate() {
-            let t = temps(self.net, self.ex.scheme, self.inlet, x, mixers, k);
-            let (_, jac) = self.ex.cell_shared_with_jacobian(self.ex.length_m * c.area_share, c.flow_share, &t);
-            let cols = self.cell_columns(k, c);
+            let t = temps(self.net, self.ex.scheme, self.inlet, nodes, walls, k);
+            let (_, jac) = self.ex.cell_shared_with_jacobian(self.dx(k), c.flow_share, &t);
+            let (_, cols) = self.cell_rows_columns(k);
             for row in &jac {
-                // Columns of the cell model: hot in, hot out, hot bulk, cold in, cold out,
-                // cold bulk, wall. The bulk is ½(in + out), or the outlet with upwinding.
-                let (w_in, w_out) = if self.ex.scheme == Scheme::Upwind { (0.0, 1.0) } else { (0.5, 0.5) };
+                // Cell-model columns: hot in, hot out, hot bulk, cold in, cold out, cold bulk, wall.
                 let five = [row[0] + w_in * row[2], row[1] + w_out * row[2], row[3] + w_in * row[5], row[4] + w_out * row[5], row[6]];
                 for (v, col) in five.iter().zip(cols.iter()) {
                     if col.is_some() {
@@ -196,22 +186,22 @@ impl System<'_> {
                 }
             }
         }
-        for (m, mixer) in self.net.mixers.iter().enumerate() {
-            let s = mixer.side.index();
-            let fluid = &self.ex.stream(mixer.side).fluid;
-            let mdot = self.mass_flow(mixer.side);
-            let share: f64 = mixer.cells.iter().map(|&k| self.net.cells[k].flow_share[s]).sum();
-            values.push(mdot * share * fluid.props(mixers[m]).cp);
-            for &k in &mixer.cells {
-                values.push(-mdot * self.net.cells[k].flow_share[s] * fluid.props(x[k][s]).cp);
+        for (n, node) in self.net.nodes.iter().enumerate() {
+            if let NodeKind::Mixer(sources) = &node.kind {
+                let fluid = &self.ex.stream(node.side).fluid;
+                let mdot = self.mass_flow(node.side);
+                values.push(mdot * node.flow_share * fluid.props(nodes[n]).cp);
+                for &m in sources {
+                    values.push(-mdot * self.net.nodes[m].flow_share * fluid.props(nodes[m]).cp);
+                }
             }
         }
     }
 
-    /// Position (m, along the first direction) of the unknown `i`, for messages.
+    /// Position (m, along the first direction) of unknown `i`, for messages.
     fn position_m(&self, i: usize) -> f64 {
-        let k = (i / 3).min(self.n_cells().saturating_sub(1));
-        self.net.cells.get(k).map_or(0.0, |c| c.position[0] * self.ex.length_m)
+        let cell = if i >= self.n_nodes() { Some(i - self.n_nodes()) } else { self.net.cells.iter().position(|c| c.out.contains(&i)) };
+        cell.and_then(|k| self.net.cells.get(k)).map_or(0.0, |c| c.position[0] * self.ex.length_m)
     }
 }
 
@@ -227,11 +217,8 @@ fn initial_guess(ex: &Exchanger, sys: &System) -> Vec<f64> {
     let q = crate::lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side).clamp(0.0, 1.0) * c_min * (th - tc);
     let hot = th - 0.5 * q / c_hot;
     let cold = tc + 0.5 * q / c_cold;
-    let mut z = Vec::with_capacity(sys.len());
-    for _ in 0..sys.n_cells() {
-        z.extend_from_slice(&[hot, cold, 0.5 * (hot + cold)]);
-    }
-    z.extend(sys.net.mixers.iter().map(|m| if m.side == Side::Hot { hot } else { cold }));
+    let mut z: Vec<f64> = sys.net.nodes.iter().map(|n| if n.side == Side::Hot { hot } else { cold }).collect();
+    z.resize(sys.len(), 0.5 * (hot + cold));
     z
 }
 
@@ -243,12 +230,12 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
     let inlet = [ex.hot.inlet_c, ex.cold.inlet_c];
     let sys = System { ex, net: &net, inlet };
     let pack = |z: &[f64], iterations: usize, residual: f64| {
-        let (x, mixers) = sys.split(z);
+        let (nodes, walls) = sys.split(z);
         NetworkSolution {
             network: net.clone(),
             cells,
-            cell_c: x.to_vec(),
-            mixer_c: mixers.to_vec(),
+            node_c: nodes.to_vec(),
+            wall_c: walls.to_vec(),
             inlet_c: inlet,
             scheme: ex.scheme,
             length_m: ex.length_m,
@@ -273,7 +260,12 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
     while norm > target {
         if iterations >= settings.max_iterations || !norm.is_finite() {
             let worst = (0..n).max_by(|&a, &b| r[a].abs().total_cmp(&r[b].abs())).unwrap_or(0);
-            return Err(SolveError::NotConverged { iterations, residual: norm / scale, tolerance: settings.tolerance, worst_position_m: sys.position_m(worst) });
+            return Err(SolveError::NotConverged {
+                iterations,
+                residual: norm / scale,
+                tolerance: settings.tolerance,
+                worst_position_m: sys.position_m(worst),
+            });
         }
         sys.jacobian_values(&z, &mut values);
         let matrix = SparseColMat::new_from_argsort(symbolic_matrix.clone(), &argsort, &values).map_err(|_| SolveError::Singular { position_m: 0.0 })?;
@@ -315,21 +307,24 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
     Ok(solution)
 }
 
-/// Second law and fluid ranges on every cell: each stream's temperatures within the inlet
-/// span, and in every cell the hot bulk not below the cold bulk.
+/// Second law and fluid ranges on every node: each stream's temperatures within the span of
+/// the two inlets. (Unlike an axial line, a network may rightly have the hot stream colder
+/// than the cold one in some cells — the temperature cross of a 1–2 shell's second pass, the
+/// far corner of crossflow with both streams mixed — so heat flowing back there is no
+/// violation.)
 fn check_network(ex: &Exchanger, s: &NetworkSolution) -> Result<(), SolveError> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
     let tol = 1e-9 * (th - tc).abs().max(1.0);
     let mut worst = (0usize, f64::NEG_INFINITY);
-    for k in 0..s.cell_c.len() {
+    for k in 0..s.wall_c.len() {
         let t = s.cell_temps(k);
-        let v = (t.cold_bulk - t.hot_bulk).max(tc - t.hot_out).max(t.hot_out - th).max(tc - t.cold_out).max(t.cold_out - th);
+        let v = (tc - t.hot_out).max(t.hot_out - th).max(tc - t.cold_out).max(t.cold_out - th);
         if v > worst.1 {
             worst = (k, v);
         }
     }
     if worst.1 > tol {
-        let max_cell_ntu = (0..s.cell_c.len())
+        let max_cell_ntu = (0..s.wall_c.len())
             .map(|k| {
                 let c = &s.network.cells[k];
                 let d = ex.cell_shared(s.dx_m(k), c.flow_share, &s.cell_temps(k));
@@ -348,9 +343,10 @@ fn check_network(ex: &Exchanger, s: &NetworkSolution) -> Result<(), SolveError> 
     for side in Side::BOTH {
         let stream = ex.stream(side);
         let (min_c, max_c) = stream.fluid.bounds();
-        let values = s.cell_c.iter().map(|c| c[side.index()]).enumerate();
-        for (k, t) in values {
+        let values = s.network.nodes.iter().zip(&s.node_c).enumerate().filter(|(_, (n, _))| n.side == side);
+        for (n, (_, &t)) in values {
             if !(t >= min_c - 1e-9 && t <= max_c + 1e-9) {
+                let k = s.network.cells.iter().position(|c| c.out[side.index()] == n).unwrap_or(0);
                 let range = stream.fluid.range();
                 return Err(SolveError::LeftRange {
                     time_s: None,

@@ -124,6 +124,9 @@ fn check_local_pressure(ex: &Exchanger, r: &SteadyReport) -> Result<(), SolveErr
     Ok(())
 }
 
+/// Where a report cell sits: x (m) and, in a network, (i, j, k) and the face fractions.
+pub(crate) type CellPlace = (f64, Option<([usize; 3], [f64; 2])>);
+
 /// A solution made ready for the report: every cell's detail with its equivalent length and
 /// wall temperature, and what differs between an axial line and a network.
 pub(crate) struct Solved {
@@ -136,7 +139,7 @@ pub(crate) struct Solved {
     /// Per cell: detail, equivalent length (m), wall temperature (°C).
     pub details: Vec<(crate::model::CellDetail, f64, f64)>,
     /// Per cell: x (m) and, in a network, (i, j, k, x fraction, y fraction).
-    pub positions: Vec<(f64, Option<([usize; 3], [f64; 2])>)>,
+    pub positions: Vec<CellPlace>,
     /// Duty and outlets.
     pub q: KeyQuantities,
     /// Pressure at each face of each stream (axial line) — empty where not computed.

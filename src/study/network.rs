@@ -12,7 +12,11 @@ use crate::solve::{solve_network, NetworkSolution, Observer, SilentObserver, Sol
 pub fn key_quantities(ex: &Exchanger, s: &NetworkSolution) -> KeyQuantities {
     let f = &ex.hot.fluid;
     let hot_out = s.outlet_c(Side::Hot);
-    KeyQuantities { duty_w: ex.hot.mass_flow_kg_s * (f.enthalpy(ex.hot.inlet_c) - f.enthalpy(hot_out)), hot_outlet_c: hot_out, cold_outlet_c: s.outlet_c(Side::Cold) }
+    KeyQuantities {
+        duty_w: ex.hot.mass_flow_kg_s * (f.enthalpy(ex.hot.inlet_c) - f.enthalpy(hot_out)),
+        hot_outlet_c: hot_out,
+        cold_outlet_c: s.outlet_c(Side::Cold),
+    }
 }
 
 /// The layout refined (or coarsened) to `cells` along the first direction, keeping the
@@ -88,7 +92,7 @@ fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumpe
         .map(|k| {
             let c = &net.cells[k];
             let dx = sol.dx_m(k);
-            (ex.cell_shared(dx, c.flow_share, &sol.cell_temps(k)), dx, sol.cell_c[k][2])
+            (ex.cell_shared(dx, c.flow_share, &sol.cell_temps(k)), dx, sol.wall_c[k])
         })
         .collect();
     let positions = net.cells.iter().map(|c| (c.position[0] * ex.length_m, Some((c.index, c.position)))).collect();
