@@ -250,7 +250,7 @@ mod tests {
     fn closed_forms_reach_their_limits() {
         let (u, m) = (Mixing::Unmixed, Mixing::Mixed);
         for ntu in [0.5, 2.0, 5.0] {
-            let limit = 1.0 - (-ntu as f64).exp();
+            let limit = 1.0 - f64::exp(-ntu);
             for (a, b) in [(u, u), (u, m), (m, u), (m, m)] {
                 assert!((crossflow(ntu, 1e-9, a, b) - limit).abs() < 1e-7);
             }

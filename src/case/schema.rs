@@ -13,6 +13,8 @@ enum Ty {
     Num,
     /// A whole number.
     Int,
+    /// true or false.
+    Bool,
     /// A string, one of the listed words (any string if empty).
     Str(Vec<String>),
     /// A list of numbers.
@@ -136,6 +138,8 @@ fn type_of(root: &Value2, s: &Value2) -> Ty {
         Ty::NumList
     } else if has_type(s, "integer") {
         Ty::Int
+    } else if has_type(s, "boolean") {
+        Ty::Bool
     } else if has_type(s, "number") {
         Ty::Num
     } else {
@@ -249,6 +253,8 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
             (Ty::Num, _) => wrong(&format!("a number ({})", field.hint)),
             (Ty::Int, Item::Value(Value::Integer(_))) => {}
             (Ty::Int, _) => wrong("a whole number"),
+            (Ty::Bool, Item::Value(Value::Boolean(_))) => {}
+            (Ty::Bool, _) => wrong("true or false, without quotes"),
             (Ty::Str(words), Item::Value(Value::String(s))) => {
                 if !words.is_empty() && !words.iter().any(|w| w == s.value()) {
                     shape.problems.push(Problem::new(

@@ -95,12 +95,17 @@ pub trait FileWriter<R>: Sync {
     fn name(&self) -> &'static str;
     /// Write `report` into the file at `path`.
     fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError>;
+    /// Whether this report has this file (a network has field plots, an axial line profiles).
+    fn applies(&self, _report: &R) -> bool {
+        true
+    }
 }
 
 /// A file writer from a name and a function.
 struct Writer<R: 'static> {
     name: &'static str,
     write: fn(&R, &Path, WriteOptions) -> Result<(), OutputError>,
+    applies: fn(&R) -> bool,
 }
 
 impl<R> FileWriter<R> for Writer<R> {
@@ -110,11 +115,27 @@ impl<R> FileWriter<R> for Writer<R> {
     fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError> {
         (self.write)(report, path, options)
     }
+    fn applies(&self, report: &R) -> bool {
+        (self.applies)(report)
+    }
 }
 
-/// The files of a steady run, in the order written.
+fn always<R>(_: &R) -> bool {
+    true
+}
+
+fn axial(r: &SteadyReport) -> bool {
+    r.fields.is_none()
+}
+
+fn network(r: &SteadyReport) -> bool {
+    r.fields.is_some()
+}
+
+/// The files of a steady run, in the order written (see [`FileWriter::applies`] for which
+/// a report has).
 pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
-    static FILES: [Writer<SteadyReport>; 5] = [
+    static FILES: [Writer<SteadyReport>; 6] = [
         Writer {
             name: "summary.json",
             write: |r, path, options| {
@@ -122,11 +143,17 @@ pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
                 summary["profile_csv_stride"] = profile_stride(r.profile.len(), options).into();
                 write_text(path, &(serde_json::to_string_pretty(&summary).expect("value serialises") + "\n"))
             },
+            applies: always,
         },
-        Writer { name: "profiles.csv", write: |r, path, options| write_with(path, |w| csv::profiles(r, profile_stride(r.profile.len(), options), w)) },
-        Writer { name: "temperatures.svg", write: |r, path, _| svg::temperatures(r, path) },
-        Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path) },
-        Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path) },
+        Writer {
+            name: "profiles.csv",
+            write: |r, path, options| write_with(path, |w| csv::profiles(r, profile_stride(r.profile.len(), options), w)),
+            applies: always,
+        },
+        Writer { name: "temperatures.svg", write: |r, path, _| svg::temperatures(r, path), applies: always },
+        Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path), applies: always },
+        Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path), applies: axial },
+        Writer { name: "outlets.svg", write: |r, path, _| svg::outlets(r, path), applies: network },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<SteadyReport>).collect()
 }
@@ -134,18 +161,22 @@ pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
 /// The files of a transient run, in the order written.
 pub fn transient_files() -> Vec<&'static dyn FileWriter<TransientReport>> {
     static FILES: [Writer<TransientReport>; 5] = [
-        Writer { name: "transient.json", write: |r, path, _| write_text(path, &(serde_json::to_string_pretty(r).expect("report serialises") + "\n")) },
-        Writer { name: "timeseries.csv", write: |r, path, _| write_with(path, |w| csv::timeseries(r, w)) },
-        Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)) },
-        Writer { name: "response.svg", write: |r, path, _| svg::response(r, path) },
-        Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path) },
+        Writer {
+            name: "transient.json",
+            write: |r, path, _| write_text(path, &(serde_json::to_string_pretty(r).expect("report serialises") + "\n")),
+            applies: always,
+        },
+        Writer { name: "timeseries.csv", write: |r, path, _| write_with(path, |w| csv::timeseries(r, w)), applies: always },
+        Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)), applies: always },
+        Writer { name: "response.svg", write: |r, path, _| svg::response(r, path), applies: always },
+        Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path), applies: always },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<TransientReport>).collect()
 }
 
-/// Names of the files a steady run writes, relative to its folder.
+/// Names of the files a steady run on an axial line writes, relative to its folder.
 pub fn steady_file_names() -> Vec<&'static str> {
-    steady_files().iter().map(|f| f.name()).collect()
+    steady_files().iter().filter(|f| f.name() != "outlets.svg").map(|f| f.name()).collect()
 }
 
 /// Names of the files a transient run writes.
@@ -164,6 +195,7 @@ fn write_files<R: serde::Serialize>(
     if let Some(what) = finite::first_non_finite(report, root) {
         return Err(OutputError::NonFinite { what });
     }
+    let files: Vec<_> = files.iter().filter(|f| f.applies(report)).collect();
     let names: Vec<&str> = files.iter().map(|f| f.name()).collect();
     folder::write_folder(dir, &names, |staging| files.iter().try_for_each(|f| f.write(report, &staging.join(f.name()), options)))?;
     Ok(names.iter().map(|f| dir.join(f)).collect())

@@ -1,7 +1,7 @@
 //! SVG plots (the only place plotters appears).
 
 use super::OutputError;
-use crate::results::SteadyReport;
+use crate::results::{Field, SteadyReport};
 use crate::scenario::TransientReport;
 use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
@@ -84,6 +84,11 @@ fn span(values: impl Iterator<Item = f64>) -> (f64, f64) {
 
 /// Hot, cold and wall temperature along the length.
 pub fn temperatures(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    if let Some(f) = &r.fields {
+        let title = format!("{}: temperatures over the {} network (°C)", r.case, r.arrangement);
+        let panels = [("hot stream", &f.hot_c), ("cold stream", &f.cold_c), ("wall", &f.wall_c)];
+        return heat_maps(&title, &panels, &f.x_label, &f.y_label, "°C", path);
+    }
     let e = plot_err(path);
     let root = SVGBackend::new(path, SIZE).into_drawing_area();
     root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
@@ -108,8 +113,112 @@ pub fn temperatures(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     root.present().map_err(|x| e(x.to_string()))
 }
 
-/// Local heat flux (upper panel) and local U (lower panel) along the length.
+/// Panels of heat maps over a network's face, one colour scale (viridis, perceptually
+/// uniform) shared by all panels and drawn as a bar on the right. At most 64 × 64 blocks
+/// are drawn per panel (finer grids are averaged into blocks), so a large network still
+/// makes a file of about 1 MB at most.
+fn heat_maps(title: &str, panels: &[(&str, &Field)], x_label: &str, y_label: &str, unit: &str, path: &Path) -> Result<(), OutputError> {
+    use plotters::style::colors::colormaps::{ColorMap, ViridisRGB};
+    let e = plot_err(path);
+    let width = 340 * panels.len() as u32 + 140;
+    let root = SVGBackend::new(path, (width, 480)).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let root = root.titled(title, ("sans-serif", 20)).map_err(|x| e(x.to_string()))?;
+    let (maps, bar) = root.split_horizontally(width - 130);
+    let (lo, hi) = span(panels.iter().flat_map(|(_, f)| f.values.iter().copied().filter(|v| v.is_finite())));
+    let colour = |v: f64| ViridisRGB.get_color_normalized(v as f32, lo as f32, hi as f32);
+    for ((label, field), area) in panels.iter().zip(maps.split_evenly((1, panels.len()))) {
+        let blocks = coarsened(field, 64);
+        let mut chart = ChartBuilder::on(&area)
+            .caption(*label, ("sans-serif", 16))
+            .margin(8)
+            .x_label_area_size(40)
+            .y_label_area_size(50)
+            .build_cartesian_2d(0.0..1.0, 0.0..1.0)
+            .map_err(|x| e(x.to_string()))?;
+        chart.configure_mesh().disable_mesh().x_desc(x_label).y_desc(y_label).label_style(("sans-serif", 11)).draw().map_err(|x| e(x.to_string()))?;
+        let (cols, rows) = (blocks.columns as f64, blocks.rows as f64);
+        chart
+            .draw_series(blocks.values.iter().enumerate().filter(|(_, v)| v.is_finite()).map(|(k, &v)| {
+                let (r, c) = ((k / blocks.columns) as f64, (k % blocks.columns) as f64);
+                Rectangle::new([(c / cols, r / rows), ((c + 1.0) / cols, (r + 1.0) / rows)], colour(v).filled())
+            }))
+            .map_err(|x| e(x.to_string()))?;
+    }
+    let mut chart = ChartBuilder::on(&bar)
+        .margin(20)
+        .margin_left(10)
+        .margin_right(30)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..1.0, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    chart.configure_mesh().disable_mesh().disable_x_axis().y_desc(unit).label_style(("sans-serif", 12)).draw().map_err(|x| e(x.to_string()))?;
+    let steps = 100;
+    chart
+        .draw_series((0..steps).map(|i| {
+            let (a, b) = (lo + (hi - lo) * i as f64 / steps as f64, lo + (hi - lo) * (i + 1) as f64 / steps as f64);
+            Rectangle::new([(0.0, a), (0.4, b)], colour(0.5 * (a + b)).filled())
+        }))
+        .map_err(|x| e(x.to_string()))?;
+    root.present().map_err(|x| e(x.to_string()))
+}
+
+/// A field averaged into at most `max` × `max` blocks.
+fn coarsened(f: &Field, max: usize) -> Field {
+    let (bx, by) = (f.columns.div_ceil(max).max(1), f.rows.div_ceil(max).max(1));
+    if bx == 1 && by == 1 {
+        return f.clone();
+    }
+    let (columns, rows) = (f.columns.div_ceil(bx), f.rows.div_ceil(by));
+    let mut sum = vec![(0.0, 0usize); columns * rows];
+    for r in 0..f.rows {
+        for c in 0..f.columns {
+            let v = f.values[r * f.columns + c];
+            if v.is_finite() {
+                let slot = &mut sum[(r / by) * columns + c / bx];
+                slot.0 += v;
+                slot.1 += 1;
+            }
+        }
+    }
+    Field { columns, rows, values: sum.into_iter().map(|(s, n)| if n > 0 { s / n as f64 } else { f64::NAN }).collect() }
+}
+
+/// A network's outlet temperatures across each stream's outlet face (lane by lane) with the
+/// mixed-mean outlets.
+pub fn outlets(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    let e = plot_err(path);
+    let Some(f) = &r.fields else { return Err(e("not a network result".into())) };
+    let root = SVGBackend::new(path, SIZE).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let (lo, hi) = span(f.hot_outlet_lanes_c.iter().chain(&f.cold_outlet_lanes_c).copied().chain([r.hot_outlet_C, r.cold_outlet_C]));
+    let mut chart = ChartBuilder::on(&root)
+        .caption(format!("{}: outlet temperature across each outlet face", r.case), ("sans-serif", 20))
+        .margin(12)
+        .x_label_area_size(50)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..1.0, lo..hi)
+        .map_err(|x| e(x.to_string()))?;
+    axes(&mut chart, "position across the outlet face (fraction)", "outlet temperature (°C)", &e)?;
+    let lanes = |v: &[f64]| -> Points {
+        let n = v.len().max(1) as f64;
+        v.iter().enumerate().map(|(i, &t)| ((i as f64 + 0.5) / n, t)).collect()
+    };
+    line(&mut chart, lanes(&f.hot_outlet_lanes_c), HOT.stroke_width(2), "hot outlet, lane by lane".into(), &e)?;
+    line(&mut chart, lanes(&f.cold_outlet_lanes_c), COLD.stroke_width(2), "cold outlet, lane by lane".into(), &e)?;
+    line(&mut chart, vec![(0.0, r.hot_outlet_C), (1.0, r.hot_outlet_C)], HOT.stroke_width(1), format!("hot mixed-mean {:.2} °C", r.hot_outlet_C), &e)?;
+    line(&mut chart, vec![(0.0, r.cold_outlet_C), (1.0, r.cold_outlet_C)], COLD.stroke_width(1), format!("cold mixed-mean {:.2} °C", r.cold_outlet_C), &e)?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, 14, &e)?;
+    root.present().map_err(|x| e(x.to_string()))
+}
+
+/// Local heat flux (upper panel) and local U (lower panel) along the length; for a network,
+/// the heat flux over its face.
 pub fn heat_flux(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
+    if let Some(f) = &r.fields {
+        let title = format!("{}: local heat flux over the {} network", r.case, r.arrangement);
+        return heat_maps(&title, &[("heat flux, hot to cold", &f.heat_flux_w_m2)], &f.x_label, &f.y_label, "W/m²", path);
+    }
     let e = plot_err(path);
     let root = SVGBackend::new(path, (SIZE.0, SIZE.1 + 160)).into_drawing_area();
     root.fill(&WHITE).map_err(|x| e(x.to_string()))?;

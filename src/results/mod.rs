@@ -8,7 +8,7 @@ pub mod transient;
 pub use transient::{OutletResponse, TransientReport};
 
 /// The caution every report carries.
-pub const CAUTION: &str = "Engineering estimate from a one-dimensional single-phase model. Boiling and \
+pub const CAUTION: &str = "Engineering estimate from a single-phase finite-volume cell model. Boiling and \
 condensation are not computed (a stream that would cross saturation is stopped with an error). Heat \
 exchangers are pressure equipment: verify results against the applicable codes and standards and have \
 them reviewed under licensed engineering practice before use in design or operation.";
