@@ -108,7 +108,57 @@ fn solve_table(case_file: &str) {
     println!("cost per cell, 10 000 vs 100 cells: {:.2}× (1.0 = linear in N)", per_cell[2] / per_cell[0]);
 }
 
+/// An invented water-to-water crossflow plate exchanger (IF97 water both sides, Gnielinski
+/// films from the flow): the network benchmark case.
+const CROSSFLOW_WATER: &str = r#"
+arrangement = "crossflow"
+length_m = 1.0
+[geometry]
+kind = "plane_wall"
+area_per_length_m2_m = 20.0
+wall_thickness_m = 0.0006
+wall_conductivity_W_mK = 16.0
+hot_flow_area_m2 = 0.01
+hot_hydraulic_diameter_m = 0.008
+cold_flow_area_m2 = 0.01
+cold_hydraulic_diameter_m = 0.008
+[hot]
+fluid = "water"
+inlet_temperature_C = 90.0
+mass_flow_kg_s = 4.0
+pressure_bar_abs = 3.0
+film = "gnielinski"
+[cold]
+fluid = "water"
+inlet_temperature_C = 15.0
+mass_flow_kg_s = 5.0
+pressure_bar_abs = 3.0
+film = "gnielinski"
+"#;
+
+/// Steady solves of the crossflow network at n × n cells.
+fn network_table() {
+    println!("\nsteady solve, crossflow water network n × n (IF97 water, Gnielinski; median, one core)");
+    println!("{:>10} {:>10} {:>12} {:>12} {:>12}", "grid", "cells", "time (ms)", "µs/cell", "iterations");
+    let mut per_cell = Vec::new();
+    for n in [25usize, 50, 100, 200] {
+        let text = format!("{CROSSFLOW_WATER}\n[crossflow]\ncells_across = {n}\n[solver]\ncells = {n}\n");
+        let case = hxgrid::case::parse_str(&text, "bench", "bench").expect("bench case");
+        let ex = case.build();
+        let layout = ex.arrangement.layout().expect("a network");
+        let its = hxgrid::solve::solve_network(&ex, &layout, &case.solver, &mut SilentObserver).unwrap().iterations;
+        let reps = if n >= 200 { 5 } else { 15 };
+        let time = median_time(reps, || {
+            black_box(hxgrid::solve::solve_network(&ex, &layout, &case.solver, &mut SilentObserver).unwrap());
+        });
+        per_cell.push(time / (n * n) as f64);
+        println!("{:>10} {:>10} {:>12.2} {:>12.3} {:>12}", format!("{n}×{n}"), n * n, time * 1e3, time / (n * n) as f64 * 1e6, its);
+    }
+    println!("cost per cell, 200×200 vs 25×25: {:.2}× (1.0 = linear in the cells)", per_cell[3] / per_cell[0]);
+}
+
 fn main() {
+    network_table();
     solve_table("water-cooler.toml");
     solve_table("co2-gas-cooler.toml");
 

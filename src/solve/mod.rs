@@ -8,6 +8,7 @@ mod checks;
 mod error;
 mod jacobian;
 mod network;
+mod sparse;
 mod steady;
 pub mod transient;
 

@@ -13,11 +13,14 @@
 
 use super::checks::suggested_cells;
 use super::error::SolveError;
+use super::sparse::{LuFailure, SparseLu};
 use super::steady::{convergence_target, stopped_flow_temperature, Observer, SteadySettings};
 use crate::model::network::NodeKind;
 use crate::model::{CellTemps, Exchanger, Feed, Layout, Network, Scheme, Side};
-use faer::sparse::linalg::solvers::{Lu, SymbolicLu};
-use faer::sparse::{Pair, SparseColMat, SymbolicSparseColMat};
+use faer::sparse::Pair;
+
+/// A reused factorisation is kept while each step cuts Σ|r| at least this much.
+const CHORD_CONTRACTION: f64 = 0.1;
 
 /// Most cells a network may have (the sparse LU's memory grows a little faster than the
 /// cell count).
@@ -81,6 +84,10 @@ fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], nodes: &[f64], walls: &
     CellTemps { hot_in, hot_out, hot_bulk: bulk(hot_in, hot_out), cold_in, cold_out, cold_bulk: bulk(cold_in, cold_out), wall: walls[k] }
 }
 
+/// A cell's Newton block: rows hot, cold, wall; columns hot in, hot out, cold in, cold out,
+/// wall (W/K).
+type CellBlock = [[f64; 5]; 3];
+
 /// The system: network, exchanger and the vector layout (nodes first, then walls).
 struct System<'a> {
     ex: &'a Exchanger,
@@ -143,15 +150,17 @@ impl System<'_> {
         ([c.out[0], c.out[1], wall], [col(c.feed[0]), Some(c.out[0]), col(c.feed[1]), Some(c.out[1]), Some(wall)])
     }
 
-    /// The Jacobian's sparsity pattern, in the order [`System::jacobian_values`] fills values
-    /// (repeated entries, as from the cells of one mixed row, are summed).
+    /// The pattern of the reduced Jacobian (nodes only: each cell's wall is eliminated
+    /// locally, which adds no entries — a wall couples only to its own cell's four stream
+    /// temperatures), in the order [`System::jacobian_values`] fills values (repeated
+    /// entries, as from the cells of one mixed row, are summed).
     fn pattern(&self) -> Vec<Pair<usize, usize>> {
         let mut p = Vec::new();
         for k in 0..self.net.cells.len() {
             let (rows, cols) = self.cell_rows_columns(k);
-            for row in rows {
-                for col in cols.iter().flatten() {
-                    p.push(Pair { row, col: *col });
+            for row in &rows[..2] {
+                for col in cols[..4].iter().flatten() {
+                    p.push(Pair { row: *row, col: *col });
                 }
             }
         }
@@ -166,9 +175,12 @@ impl System<'_> {
         p
     }
 
-    /// Jacobian values in pattern order.
-    fn jacobian_values(&self, z: &[f64], values: &mut Vec<f64>) {
+    /// The reduced Jacobian's values in pattern order, and each cell's own 3 × 5 block
+    /// (rows hot, cold, wall; columns hot in, hot out, cold in, cold out, wall) for the
+    /// elimination of its wall.
+    fn jacobian_values(&self, z: &[f64], values: &mut Vec<f64>, blocks: &mut Vec<CellBlock>) {
         values.clear();
+        blocks.clear();
         let (nodes, walls) = self.split(z);
         // The bulk is ½(in + out), or the outlet with upwinding.
         let (w_in, w_out) = if self.ex.scheme == Scheme::Upwind { (0.0, 1.0) } else { (0.5, 0.5) };
@@ -176,15 +188,18 @@ impl System<'_> {
             let t = temps(self.net, self.ex.scheme, self.inlet, nodes, walls, k);
             let (_, jac) = self.ex.cell_shared_with_jacobian(self.dx(k), c.flow_share, &t);
             let (_, cols) = self.cell_rows_columns(k);
-            for row in &jac {
-                // Cell-model columns: hot in, hot out, hot bulk, cold in, cold out, cold bulk, wall.
-                let five = [row[0] + w_in * row[2], row[1] + w_out * row[2], row[3] + w_in * row[5], row[4] + w_out * row[5], row[6]];
-                for (v, col) in five.iter().zip(cols.iter()) {
-                    if col.is_some() {
-                        values.push(*v);
+            // Cell-model columns: hot in, hot out, hot bulk, cold in, cold out, cold bulk, wall.
+            let block: CellBlock = jac.map(|row| [row[0] + w_in * row[2], row[1] + w_out * row[2], row[3] + w_in * row[5], row[4] + w_out * row[5], row[6]]);
+            let wall = block[2];
+            for row in &block[..2] {
+                let ratio = row[4] / wall[4];
+                for j in 0..4 {
+                    if cols[j].is_some() {
+                        values.push(row[j] - ratio * wall[j]);
                     }
                 }
             }
+            blocks.push(block);
         }
         for (n, node) in self.net.nodes.iter().enumerate() {
             if let NodeKind::Mixer(sources) = &node.kind {
@@ -198,6 +213,30 @@ impl System<'_> {
         }
     }
 
+    /// Newton step from residuals `r` with the eliminated system: the nodes' right-hand
+    /// side less each wall's share, solved by `lu`, then each wall from its own row.
+    fn step(&self, r: &[f64], blocks: &[CellBlock], lu: &mut SparseLu, step: &mut [f64]) {
+        let nn = self.n_nodes();
+        let (nodes, walls) = step.split_at_mut(nn);
+        nodes.copy_from_slice(&r[..nn]);
+        for (k, (c, b)) in self.net.cells.iter().zip(blocks).enumerate() {
+            let r_wall = r[nn + k];
+            nodes[c.out[0]] -= b[0][4] / b[2][4] * r_wall;
+            nodes[c.out[1]] -= b[1][4] / b[2][4] * r_wall;
+        }
+        lu.solve(nodes);
+        for (k, b) in blocks.iter().enumerate() {
+            let (_, cols) = self.cell_rows_columns(k);
+            let mut v = r[nn + k];
+            for j in 0..4 {
+                if let Some(col) = cols[j] {
+                    v -= b[2][j] * nodes[col];
+                }
+            }
+            walls[k] = v / b[2][4];
+        }
+    }
+
     /// Position (m, along the first direction) of unknown `i`, for messages.
     fn position_m(&self, i: usize) -> f64 {
         let cell = if i >= self.n_nodes() { Some(i - self.n_nodes()) } else { self.net.cells.iter().position(|c| c.out.contains(&i)) };
@@ -205,8 +244,64 @@ impl System<'_> {
     }
 }
 
-/// Initial guess: the closed-form duty spread evenly, each stream at the mean of its inlet
-/// and estimated outlet, the wall between them.
+/// How far along its stream's path each node is: cells passed from the inlet (a mixed row
+/// counts once), by a topological walk of each stream's flow graph.
+fn path_depths(net: &Network) -> Vec<usize> {
+    let nn = net.nodes.len();
+    let mut depth = vec![0usize; nn];
+    // What each node still waits for, and who waits for each node.
+    let mut waiting = vec![0usize; nn];
+    let mut cells_from: Vec<Vec<(usize, usize)>> = vec![Vec::new(); nn]; // (cell, side) fed by the node
+    let mut mixers_from: Vec<Vec<usize>> = vec![Vec::new(); nn];
+    let mut ready: Vec<(usize, usize)> = Vec::new(); // (cell, side) whose feed is known
+    for (k, c) in net.cells.iter().enumerate() {
+        for s in 0..2 {
+            waiting[c.out[s]] += 1;
+            match c.feed[s] {
+                Feed::Inlet => ready.push((k, s)),
+                Feed::Node(n) => cells_from[n].push((k, s)),
+            }
+        }
+    }
+    for (m, node) in net.nodes.iter().enumerate() {
+        if let NodeKind::Mixer(sources) = &node.kind {
+            waiting[m] = sources.len();
+            for &src in sources {
+                mixers_from[src].push(m);
+            }
+        }
+    }
+    let mut done_nodes: Vec<usize> = Vec::new();
+    while !ready.is_empty() || !done_nodes.is_empty() {
+        while let Some((k, s)) = ready.pop() {
+            let c = &net.cells[k];
+            let d = match c.feed[s] {
+                Feed::Inlet => 1,
+                Feed::Node(n) => depth[n] + 1,
+            };
+            let out = c.out[s];
+            depth[out] = depth[out].max(d);
+            waiting[out] -= 1;
+            if waiting[out] == 0 {
+                done_nodes.push(out);
+            }
+        }
+        while let Some(n) = done_nodes.pop() {
+            ready.extend(cells_from[n].iter().copied());
+            for &m in &mixers_from[n] {
+                depth[m] = depth[m].max(depth[n]);
+                waiting[m] -= 1;
+                if waiting[m] == 0 {
+                    done_nodes.push(m);
+                }
+            }
+        }
+    }
+    depth
+}
+
+/// Initial guess: each stream's temperature linear in the cells passed along its path,
+/// between its inlet and the closed-form outlet estimate; the wall between the streams.
 fn initial_guess(ex: &Exchanger, sys: &System) -> Vec<f64> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
     let c_hot = ex.hot.mass_flow_kg_s * (ex.hot.fluid.enthalpy(th) - ex.hot.fluid.enthalpy(tc)) / (th - tc);
@@ -215,10 +310,28 @@ fn initial_guess(ex: &Exchanger, sys: &System) -> Vec<f64> {
     let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
     let min_side = if c_hot <= c_cold { Side::Hot } else { Side::Cold };
     let q = crate::lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side).clamp(0.0, 1.0) * c_min * (th - tc);
-    let hot = th - 0.5 * q / c_hot;
-    let cold = tc + 0.5 * q / c_cold;
-    let mut z: Vec<f64> = sys.net.nodes.iter().map(|n| if n.side == Side::Hot { hot } else { cold }).collect();
-    z.resize(sys.len(), 0.5 * (hot + cold));
+    let (hot_drop, cold_rise) = (q / c_hot, q / c_cold);
+    let depth = path_depths(sys.net);
+    let mut longest = [1usize; 2];
+    for (n, node) in sys.net.nodes.iter().enumerate() {
+        longest[node.side.index()] = longest[node.side.index()].max(depth[n]);
+    }
+    let mut z: Vec<f64> = sys
+        .net
+        .nodes
+        .iter()
+        .enumerate()
+        .map(|(n, node)| {
+            let f = depth[n] as f64 / longest[node.side.index()] as f64;
+            if node.side == Side::Hot {
+                th - hot_drop * f
+            } else {
+                tc + cold_rise * f
+            }
+        })
+        .collect();
+    let walls: Vec<f64> = sys.net.cells.iter().map(|c| 0.5 * (z[c.out[0]] + z[c.out[1]])).collect();
+    z.extend(walls);
     z
 }
 
@@ -251,12 +364,22 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
     let mut z = initial_guess(ex, &sys);
     let mut r = vec![0.0; n];
     let mut trial = vec![0.0; n];
+    let mut trial_r = vec![0.0; n];
     let mut step = vec![0.0; n];
-    let (symbolic_matrix, argsort) = SymbolicSparseColMat::try_new_from_indices(n, n, &sys.pattern()).map_err(|_| SolveError::Singular { position_m: 0.0 })?;
-    let mut symbolic: Option<SymbolicLu<usize>> = None;
-    let mut values = Vec::new();
+    let singular = |failure: LuFailure| SolveError::Singular {
+        position_m: match failure {
+            LuFailure::Singular(at) => at.map_or(0.0, |i| sys.position_m(i)),
+        },
+    };
+    let mut lu = SparseLu::new(sys.n_nodes(), &sys.pattern()).map_err(singular)?;
+    let (mut values, mut blocks) = (Vec::new(), Vec::new());
     let mut norm = sys.residuals(&z, &mut r);
     let mut iterations = 0;
+    // Chord steps: the factorisation is reused while each step cuts the residual at least
+    // tenfold (the Jacobian changes only through the properties and films); a step that
+    // does less earns a fresh Jacobian, and a fresh Jacobian's step that fails is backtracked.
+    let mut fresh = false;
+    let mut refactor = true;
     while norm > target {
         if iterations >= settings.max_iterations || !norm.is_finite() {
             let worst = (0..n).max_by(|&a, &b| r[a].abs().total_cmp(&r[b].abs())).unwrap_or(0);
@@ -267,22 +390,12 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
                 worst_position_m: sys.position_m(worst),
             });
         }
-        sys.jacobian_values(&z, &mut values);
-        let matrix = SparseColMat::new_from_argsort(symbolic_matrix.clone(), &argsort, &values).map_err(|_| SolveError::Singular { position_m: 0.0 })?;
-        if symbolic.is_none() {
-            symbolic = Some(SymbolicLu::try_new(matrix.symbolic()).map_err(|_| SolveError::Singular { position_m: 0.0 })?);
+        if refactor {
+            sys.jacobian_values(&z, &mut values, &mut blocks);
+            lu.factor(&values).map_err(singular)?;
+            fresh = true;
         }
-        let lu = Lu::try_new_with_symbolic(symbolic.clone().expect("analysed above"), matrix.as_ref()).map_err(|e| SolveError::Singular {
-            position_m: match e {
-                faer::sparse::linalg::LuError::SymbolicSingular { index } => sys.position_m(index),
-                _ => 0.0,
-            },
-        })?;
-        step.copy_from_slice(&r);
-        {
-            use faer::linalg::solvers::Solve;
-            lu.solve_in_place(faer::ColMut::from_slice_mut(&mut step).as_mat_mut());
-        }
+        sys.step(&r, &blocks, &mut lu, &mut step);
         if let Some(bad) = step.iter().position(|v| !v.is_finite()) {
             return Err(SolveError::Singular { position_m: sys.position_m(bad) });
         }
@@ -291,16 +404,27 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
             for i in 0..n {
                 trial[i] = z[i] - lambda * step[i];
             }
-            let trial_norm = sys.residuals(&trial, &mut r);
+            let trial_norm = sys.residuals(&trial, &mut trial_r);
+            // NaN counts as "did not contract".
+            let contracted = trial_norm < CHORD_CONTRACTION * norm;
+            if !fresh && !contracted {
+                // A chord step that did not do well: retry from z with a fresh Jacobian (the
+                // residuals at z are still in `r`).
+                refactor = true;
+                break;
+            }
             if trial_norm < norm || lambda < 1e-3 {
+                refactor = !contracted;
+                fresh = false;
                 norm = trial_norm;
+                std::mem::swap(&mut z, &mut trial);
+                std::mem::swap(&mut r, &mut trial_r);
+                iterations += 1;
+                observer.iteration(iterations, norm / scale);
                 break;
             }
             lambda *= 0.5;
         }
-        std::mem::swap(&mut z, &mut trial);
-        iterations += 1;
-        observer.iteration(iterations, norm / scale);
     }
     let solution = pack(&z, iterations, norm / scale);
     check_network(ex, &solution)?;
