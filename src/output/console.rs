@@ -51,7 +51,18 @@ pub fn transient(r: &TransientReport) -> String {
 pub fn steady(r: &SteadyReport) -> String {
     let mut out = String::new();
     let l = &r.lumped;
-    let _ = writeln!(out, "\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+    match &r.network {
+        None => {
+            let _ = writeln!(out, "\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+        }
+        Some(n) => {
+            let _ = writeln!(
+                out,
+                "\n{} — {} network, {} cells along its first direction, {} cells in all ({} Newton iterations)",
+                r.case, r.arrangement, r.cells, n.cells_total, r.iterations
+            );
+        }
+    }
     let _ = writeln!(out, "  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
     let _ = writeln!(out, "\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
     use crate::text::fixed as f;
@@ -82,6 +93,20 @@ pub fn steady(r: &SteadyReport) -> String {
     let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
     let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
     let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
+    if let Some(n) = &r.network {
+        let exact = if n.closed_form_exact { "exact" } else { "approximate" };
+        let _ = writeln!(out, "{:<22}{:>16}   (closed form at the grid's NTU and Cr, {exact})", "closed-form ε", f(n.closed_form_effectiveness, 5));
+        for (name, o) in [("hot", &n.hot_outlet), ("cold", &n.cold_outlet)] {
+            let _ = writeln!(
+                out,
+                "{name} outlet across its face: {} … {} °C over {} lanes (mixed mean {} °C)",
+                f(o.min_C, 3),
+                f(o.max_C, 3),
+                o.lanes,
+                f(o.mixed_mean_C, 3)
+            );
+        }
+    }
     let _ = writeln!(out, "\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
     if let Some(g) = &r.grid_error_estimate {
         let _ = writeln!(
