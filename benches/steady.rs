@@ -155,6 +155,22 @@ fn network_table() {
         println!("{:>10} {:>10} {:>12.2} {:>12.3} {:>12}", format!("{n}×{n}"), n * n, time * 1e3, time / (n * n) as f64 * 1e6, its);
     }
     println!("cost per cell, 200×200 vs 25×25: {:.2}× (1.0 = linear in the cells)", per_cell[3] / per_cell[0]);
+    // A network with feedback (the sparse LU path): the same water, two 1-2 shells in series.
+    println!("\nsteady solve, the same water in two 1-2 shells in series (sparse LU path)");
+    println!("{:>10} {:>10} {:>12} {:>12} {:>12}", "per pass", "cells", "time (ms)", "µs/cell", "iterations");
+    for n in [250usize, 1_000, 2_500] {
+        let text = format!("{CROSSFLOW_WATER}\n[shell_and_tube]\nshell_side = \"cold\"\ntube_passes = 2\nshells_in_series = 2\n[solver]\ncells = {n}\n")
+            .replace("arrangement = \"crossflow\"", "arrangement = \"shell_and_tube\"");
+        let case = hxgrid::case::parse_str(&text, "bench", "bench").expect("bench case");
+        let ex = case.build();
+        let layout = ex.arrangement.layout().expect("a network");
+        let its = hxgrid::solve::solve_network(&ex, &layout, &case.solver, &mut SilentObserver).unwrap().iterations;
+        let time = median_time(9, || {
+            black_box(hxgrid::solve::solve_network(&ex, &layout, &case.solver, &mut SilentObserver).unwrap());
+        });
+        let cells = 4 * n;
+        println!("{:>10} {:>10} {:>12.2} {:>12.3} {:>12}", n, cells, time * 1e3, time / cells as f64 * 1e6, its);
+    }
 }
 
 fn main() {
