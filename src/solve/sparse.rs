@@ -141,12 +141,14 @@ impl BlockSweep {
                 }
                 a.swap(k, p);
                 b.swap(k, p);
-                for i in k + 1..s {
-                    let f = a[i][k] / a[k][k];
-                    for j in k..s {
-                        a[i][j] -= f * a[k][j];
+                let (top, below) = a.split_at_mut(k + 1);
+                let pivot = &top[k];
+                for (i, row) in below.iter_mut().enumerate().take(s - k - 1) {
+                    let f = row[k] / pivot[k];
+                    for (x, p) in row[k..s].iter_mut().zip(&pivot[k..s]) {
+                        *x -= f * p;
                     }
-                    b[i] -= f * b[k];
+                    b[k + 1 + i] -= f * b[k];
                 }
             }
             for k in (0..s).rev() {
@@ -225,8 +227,8 @@ fn strongly_connected(n: usize, rows: &[Vec<(usize, usize)>]) -> Option<Vec<Vec<
 pub(crate) enum Linear {
     /// Block forward substitution.
     Sweep(BlockSweep),
-    /// Sparse LU.
-    Lu(SparseLu),
+    /// Sparse LU (boxed: it carries its workspace).
+    Lu(Box<SparseLu>),
 }
 
 impl Linear {
@@ -234,7 +236,7 @@ impl Linear {
     pub(crate) fn new(n: usize, pairs: &[Pair<usize, usize>]) -> Result<Self, LuFailure> {
         match BlockSweep::new(n, pairs) {
             Some(s) => Ok(Linear::Sweep(s)),
-            None => Ok(Linear::Lu(SparseLu::new(n, pairs)?)),
+            None => Ok(Linear::Lu(Box::new(SparseLu::new(n, pairs)?))),
         }
     }
 
