@@ -51,13 +51,27 @@ pub fn run(
     response_from_s: Option<f64>,
     observer: &mut dyn TransientObserver,
 ) -> Result<TransientReport, TransientError> {
-    let run = simulate(ex, inputs, settings, observer)?;
+    let (run, network) = match ex.arrangement.layout() {
+        None => (simulate(ex, inputs, settings, observer)?, None),
+        Some(layout) => {
+            let r = crate::solve::transient::simulate_network(ex, &layout, inputs, settings, observer)?;
+            (r.run, Some(r.network))
+        }
+    };
     let end = settings.duration_s;
     // The steady state for the final inputs, beside the end of a completed run (none after
     // an early stop: the run did not reach the end).
+    let final_steady = |e: &Exchanger| -> Result<(f64, f64), crate::solve::SolveError> {
+        let steady_settings = SteadySettings { cells: settings.cells, ..SteadySettings::default() };
+        match e.arrangement.layout() {
+            None => solve_steady(e, &steady_settings, &mut SilentObserver).map(|s| (s.hot_outlet_c(), s.cold_outlet_c(e.arrangement))),
+            Some(layout) => crate::solve::solve_network(e, &layout, &steady_settings, &mut SilentObserver)
+                .map(|s| (s.outlet_c(crate::model::Side::Hot), s.outlet_c(crate::model::Side::Cold))),
+        }
+    };
     let steady = match &run.stopped {
         Some(_) => None,
-        None => match solve_steady(&inputs.apply(ex, end), &SteadySettings { cells: settings.cells, ..SteadySettings::default() }, &mut SilentObserver) {
+        None => match final_steady(&inputs.apply(ex, end)) {
             Ok(s) => Some(s),
             // No steady comparison where none is defined: both flows stopped, or the
             // schedules end with the "hot" inlet no hotter than the "cold" one.
@@ -111,8 +125,8 @@ pub fn run(
             Initial::Uniform(t) => format!("uniform {t} °C (fluids and wall)"),
         },
         reference_time_s: reference,
-        hot_outlet: response(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.as_ref().map(|s| s.hot_outlet_c())),
-        cold_outlet: response(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.as_ref().map(|s| s.cold_outlet_c(ex.arrangement))),
+        hot_outlet: response(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.map(|s| s.0)),
+        cold_outlet: response(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.map(|s| s.1)),
         hot_heat_J: last.hot_heat_J,
         energy_closure_J: closure,
         energy_closure_relative: if last.hot_heat_J != 0.0 { (closure / last.hot_heat_J).abs() } else { 0.0 },
@@ -120,7 +134,9 @@ pub fn run(
         max_wall_rate_K_s: max_rate,
         stats: run.stats,
         caution: CAUTION,
-        faces_m: (0..=run.cells).map(|j| j as f64 * ex.length_m / run.cells as f64).collect(),
+        faces_m: if network.is_some() { Vec::new() } else { (0..=run.cells).map(|j| j as f64 * ex.length_m / run.cells as f64).collect() },
+        network,
+        arrangement: ex.arrangement.as_str(),
         samples: run.samples,
         snapshots: run.snapshots,
     })

@@ -106,3 +106,34 @@ fn network_demos_write_fields() {
         std::fs::remove_dir_all(&out).unwrap();
     }
 }
+
+fn demo_text(name: &str) -> String {
+    std::fs::read_to_string(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases").join(name)).unwrap()
+}
+
+/// A transient on a network settles on the steady rating of the same grid (the same cell
+/// balances with storage added) and closes energy to round-off: the crossflow start-up demo
+/// run long, and a shell-and-tube network (with headers-free stations shared by the passes)
+/// after a hot-inlet step.
+#[test]
+fn network_transients_settle_on_the_steady_answer() {
+    let text = demo_text("crossflow-recuperator-startup.toml").replace("duration_s = 600.0", "duration_s = 4000.0").replace("300.0, 600.0]", "300.0]");
+    let case = hxgrid::case::parse_str(&text, "t", "t").unwrap();
+    let report = hxgrid::simulate(&case).unwrap().unwrap();
+    for o in [&report.hot_outlet, &report.cold_outlet] {
+        assert!(o.difference_from_steady_K.unwrap().abs() < 1e-4, "{o:?}");
+    }
+    assert!(report.energy_closure_relative < 1e-9);
+
+    let shell = demo_text("shell-and-tube-water-cooler.toml")
+        .replace("wall_conductivity_W_mK = 16.0", "wall_conductivity_W_mK = 16.0\nhot_flow_area_m2 = 0.02\nhot_hydraulic_diameter_m = 0.016\ncold_flow_area_m2 = 0.05\ncold_hydraulic_diameter_m = 0.02")
+        .replace("cells = 100", "cells = 20")
+        + "\n[transient]\nduration_s = 3000.0\noutput_interval_s = 10.0\nwall_density_kg_m3 = 7900.0\nwall_specific_heat_J_kgK = 500.0\n[transient.hot_inlet_temperature_C]\nkind = \"step\"\ntime_s = 10.0\nto = 75.0\n";
+    let case = hxgrid::case::parse_str(&shell, "s", "s").unwrap();
+    let report = hxgrid::simulate(&case).unwrap().unwrap();
+    assert!(report.energy_closure_relative < 1e-9, "{}", report.energy_closure_relative);
+    assert!(report.hot_outlet.change_K < 0.0);
+    for o in [&report.hot_outlet, &report.cold_outlet] {
+        assert!(o.difference_from_steady_K.unwrap().abs() < 1e-4, "{o:?}");
+    }
+}

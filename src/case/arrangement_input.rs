@@ -118,15 +118,18 @@ pub(super) fn arrangement(c: &mut Checker, f: &CaseFile, geometry: &Geometry, ce
                 format!("\"tvd\" is available for counterflow and parallel only; with arrangement = \"{name}\" use \"trapezoidal\" (default) or \"upwind\""),
             );
         }
+        if f.transient.as_ref().and_then(|t| t.integrator) == Some(IntegratorName::Explicit) {
+            c.fail(
+                "transient.integrator",
+                format!("\"explicit\" is available for counterflow and parallel only; with arrangement = \"{name}\" use \"implicit\" or \"auto\" (BDF2)"),
+            );
+        }
         let total = layout.cell_count(cells);
         if total > MAX_NETWORK_CELLS {
             c.fail(
                 "solver.cells",
                 format!("{cells} gives {total} cells in the {name} network, above the limit of {MAX_NETWORK_CELLS}: use fewer cells or fewer cells across"),
             );
-        }
-        if f.transient.is_some() {
-            c.fail("transient", format!("transient runs are available for counterflow and parallel arrangements; with arrangement = \"{name}\" remove [transient] and rate the steady state"));
         }
     }
     arrangement

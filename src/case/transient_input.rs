@@ -114,7 +114,9 @@ pub(super) fn snapshot_checks(c: &mut Checker, times: &[f64], duration: f64, int
     }
 }
 
-pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geometry, cells: usize) -> TransientSpec {
+/// `snapshot_cells`: the values a snapshot holds per stream, less one (faces − 1 on an axial
+/// line; a network's cells).
+pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geometry: &Geometry, cells: usize, snapshot_cells: usize) -> TransientSpec {
     let duration = c.positive("transient.duration_s", t.duration_s, "s");
     let interval = t.output_interval_s.unwrap_or((duration / 1000.0).max(1e-6));
     if !(interval > 0.0 && interval <= duration) {
@@ -197,7 +199,7 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
         }
     }
     let snapshots = t.snapshot_times_s.clone().unwrap_or_else(|| (0..=4).map(|k| k as f64 * duration / 4.0).collect());
-    snapshot_checks(c, &snapshots, duration, interval, cells);
+    snapshot_checks(c, &snapshots, duration, interval, snapshot_cells);
     let mut sig =
         |name: &str, s: &Option<SignalFile>, before: f64, flow: bool| s.as_ref().map(|s| signal(c, &format!("transient.{name}"), s, before, duration, flow));
     let hot_inlet_c = sig("hot_inlet_temperature_C", &t.hot_inlet_temperature_C, f.hot.inlet_temperature_C, false);

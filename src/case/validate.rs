@@ -200,7 +200,9 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         Some(SchemeName::Tvd) => crate::model::Scheme::Tvd,
     };
     let arrangement = super::arrangement_input::arrangement(&mut c, f, &geometry, cells.max(1) as usize, scheme);
-    let transient = f.transient.as_ref().filter(|_| arrangement.layout().is_none()).map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize));
+    // Snapshot rows are bounded by the cells a snapshot holds: a network's every cell.
+    let snapshot_cells = arrangement.layout().map_or(cells.max(1) as usize, |l| l.cell_count(cells.max(1) as usize));
+    let transient = f.transient.as_ref().map(|t| transient(&mut c, t, f, &geometry, cells.max(1) as usize, snapshot_cells));
     let name = match &f.name {
         Some(given) => {
             if let Err(why) = check_name(given) {

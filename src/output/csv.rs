@@ -74,6 +74,21 @@ pub fn timeseries(report: &TransientReport, w: &mut dyn Write) -> io::Result<Res
     write_rows(report.samples.iter().enumerate().map(|(i, s)| (i + 1, s)), 10, w)
 }
 
+/// One row of a network's snapshots.csv.
+#[derive(Serialize)]
+#[allow(non_snake_case)]
+struct NetworkSnapshotRow {
+    time_s: f64,
+    i: usize,
+    j: usize,
+    k: usize,
+    x_fraction: f64,
+    y_fraction: f64,
+    hot_C: f64,
+    cold_C: f64,
+    wall_C: f64,
+}
+
 /// One row of snapshots.csv.
 #[derive(Serialize)]
 #[allow(non_snake_case)]
@@ -88,6 +103,28 @@ struct SnapshotRow {
 /// snapshots.csv: one row per (time, face). Wall temperatures live at cell centres; at a
 /// face the mean of the two neighbouring cells is written (the end cell at the ends).
 pub fn snapshots(report: &TransientReport, w: &mut dyn Write) -> io::Result<Result<(), String>> {
+    if let Some(net) = &report.network {
+        // One row per cell and snapshot: the cell's indices and position, its bulk
+        // temperatures and wall.
+        let rows: Vec<NetworkSnapshotRow> = report
+            .snapshots
+            .iter()
+            .flat_map(|snap| {
+                net.cells.iter().enumerate().map(move |(k, c)| NetworkSnapshotRow {
+                    time_s: snap.time_s,
+                    i: c.index[0],
+                    j: c.index[1],
+                    k: c.index[2],
+                    x_fraction: c.position[0],
+                    y_fraction: c.position[1],
+                    hot_C: snap.hot_faces_c[k],
+                    cold_C: snap.cold_faces_c[k],
+                    wall_C: snap.wall_c[k],
+                })
+            })
+            .collect();
+        return write_rows(rows.iter().enumerate().map(|(i, r)| (i + 1, r)), 10, w);
+    }
     let rows: Vec<SnapshotRow> = report
         .snapshots
         .iter()

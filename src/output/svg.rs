@@ -347,6 +347,20 @@ pub fn response(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
 /// Hot and cold temperature profiles at the snapshot times, as a family of curves (later
 /// times darker).
 pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
+    if let (Some(net), Some(snap)) = (&r.network, r.snapshots.last()) {
+        // A network: its fields at the last snapshot as heat maps.
+        let field = |values: &[f64]| Field::of_network(net, values);
+        let (hot, cold, wall) = (field(&snap.hot_faces_c), field(&snap.cold_faces_c), field(&snap.wall_c));
+        let title = format!("{}: temperatures over the {} network at t = {} s (°C)", r.case, r.arrangement, snap.time_s);
+        return heat_maps(
+            &title,
+            &[("hot stream", &hot), ("cold stream", &cold), ("wall", &wall)],
+            "first direction (fraction)",
+            "second direction (fraction)",
+            "°C",
+            path,
+        );
+    }
     let e = plot_err(path);
     let root = SVGBackend::new(path, SIZE).into_drawing_area();
     root.fill(&WHITE).map_err(|x| e(x.to_string()))?;

@@ -214,6 +214,20 @@ pub struct Field {
     pub values: Vec<f64>,
 }
 
+impl Field {
+    /// One value per cell of `net` placed on its plot lattice (empty slots NaN).
+    pub fn of_network(net: &crate::model::Network, values: &[f64]) -> Self {
+        let (columns, rows) = net.plot_shape;
+        let mut v = vec![f64::NAN; columns * rows];
+        for (c, &value) in net.cells.iter().zip(values) {
+            let col = ((c.position[0] * columns as f64) as usize).min(columns - 1);
+            let row = ((c.position[1] * rows as f64) as usize).min(rows - 1);
+            v[row * columns + col] = value;
+        }
+        Field { columns, rows, values: v }
+    }
+}
+
 /// The 2-D picture of a network result, for plots.
 #[derive(Debug, Clone, Default)]
 pub struct NetworkFields {

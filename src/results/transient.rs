@@ -77,7 +77,13 @@ pub struct TransientReport {
     /// Profile snapshots (CSV and plot).
     #[serde(skip)]
     pub snapshots: Vec<Snapshot>,
-    /// Face positions, m.
+    /// Face positions, m (empty for a network).
     #[serde(skip)]
     pub faces_m: Vec<f64>,
+    /// A network's cells (their snapshots hold one value per cell: hot bulk, cold bulk,
+    /// wall); None on an axial line, whose snapshots hold face values.
+    #[serde(skip)]
+    pub network: Option<crate::model::Network>,
+    /// The arrangement, as the case file names it.
+    pub arrangement: &'static str,
 }

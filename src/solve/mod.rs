@@ -7,8 +7,8 @@ mod blocktri;
 mod checks;
 mod error;
 mod jacobian;
-mod network;
-mod sparse;
+pub(crate) mod network;
+pub(crate) mod sparse;
 mod steady;
 pub mod transient;
 

@@ -72,7 +72,7 @@ impl NetworkSolution {
 }
 
 /// Build cell `k`'s temperatures from the unknowns.
-fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], nodes: &[f64], walls: &[f64], k: usize) -> CellTemps {
+pub(crate) fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], nodes: &[f64], walls: &[f64], k: usize) -> CellTemps {
     let c = &net.cells[k];
     let value = |feed: Feed, s: usize| match feed {
         Feed::Inlet => inlet[s],
@@ -86,25 +86,37 @@ fn temps(net: &Network, scheme: Scheme, inlet: [f64; 2], nodes: &[f64], walls: &
 
 /// A cell's Newton block: rows hot, cold, wall; columns hot in, hot out, cold in, cold out,
 /// wall (W/K).
-type CellBlock = [[f64; 5]; 3];
+pub(crate) type CellBlock = [[f64; 5]; 3];
 
 /// The system: network, exchanger and the vector layout (nodes first, then walls).
-struct System<'a> {
-    ex: &'a Exchanger,
-    net: &'a Network,
-    inlet: [f64; 2],
+pub(crate) struct System<'a> {
+    pub(crate) ex: &'a Exchanger,
+    pub(crate) net: &'a Network,
+    pub(crate) inlet: [f64; 2],
+}
+
+/// Storage added to the Newton matrix by an implicit time step: the matrix is
+/// D − bh·J with D the storage derivatives (σ M cp on each cell-outlet node, σ = +1 hot,
+/// −1 cold, so the cold rows keep the steady Jacobian's signs; C on each wall).
+pub(crate) struct Storage<'s> {
+    /// b·h of the BDF formula, s.
+    pub(crate) bh: f64,
+    /// Per node, σ·M·cp (0 for headers, which store nothing), W·s/K.
+    pub(crate) node: &'s [f64],
+    /// Per cell, the wall's heat capacity, J/K.
+    pub(crate) wall: &'s [f64],
 }
 
 impl System<'_> {
-    fn n_nodes(&self) -> usize {
+    pub(crate) fn n_nodes(&self) -> usize {
         self.net.nodes.len()
     }
 
-    fn len(&self) -> usize {
+    pub(crate) fn len(&self) -> usize {
         self.n_nodes() + self.net.cells.len()
     }
 
-    fn split<'z>(&self, z: &'z [f64]) -> (&'z [f64], &'z [f64]) {
+    pub(crate) fn split<'z>(&self, z: &'z [f64]) -> (&'z [f64], &'z [f64]) {
         z.split_at(self.n_nodes())
     }
 
@@ -117,7 +129,7 @@ impl System<'_> {
     }
 
     /// Fill residuals (W); return Σ|r|.
-    fn residuals(&self, z: &[f64], r: &mut [f64]) -> f64 {
+    pub(crate) fn residuals(&self, z: &[f64], r: &mut [f64]) -> f64 {
         let (nodes, walls) = self.split(z);
         let nn = self.n_nodes();
         r.fill(0.0);
@@ -150,11 +162,19 @@ impl System<'_> {
         ([c.out[0], c.out[1], wall], [col(c.feed[0]), Some(c.out[0]), col(c.feed[1]), Some(c.out[1]), Some(wall)])
     }
 
+    /// The pattern with a diagonal entry for every cell-outlet node appended (for the
+    /// storage of an implicit time step), in the order [`System::jacobian_values`] fills it.
+    pub(crate) fn pattern_with_storage(&self) -> Vec<Pair<usize, usize>> {
+        let mut p = self.pattern();
+        p.extend(self.net.nodes.iter().enumerate().filter(|(_, n)| n.kind == NodeKind::Cells).map(|(n, _)| Pair { row: n, col: n }));
+        p
+    }
+
     /// The pattern of the reduced Jacobian (nodes only: each cell's wall is eliminated
     /// locally, which adds no entries — a wall couples only to its own cell's four stream
     /// temperatures), in the order [`System::jacobian_values`] fills values (repeated
     /// entries, as from the cells of one mixed row, are summed).
-    fn pattern(&self) -> Vec<Pair<usize, usize>> {
+    pub(crate) fn pattern(&self) -> Vec<Pair<usize, usize>> {
         let mut p = Vec::new();
         for k in 0..self.net.cells.len() {
             let (rows, cols) = self.cell_rows_columns(k);
@@ -178,7 +198,7 @@ impl System<'_> {
     /// The reduced Jacobian's values in pattern order, and each cell's own 3 × 5 block
     /// (rows hot, cold, wall; columns hot in, hot out, cold in, cold out, wall) for the
     /// elimination of its wall.
-    fn jacobian_values(&self, z: &[f64], values: &mut Vec<f64>, blocks: &mut Vec<CellBlock>) {
+    pub(crate) fn jacobian_values(&self, z: &[f64], values: &mut Vec<f64>, blocks: &mut Vec<CellBlock>, storage: Option<&Storage>) {
         values.clear();
         blocks.clear();
         let (nodes, walls) = self.split(z);
@@ -189,7 +209,16 @@ impl System<'_> {
             let (_, jac) = self.ex.cell_shared_with_jacobian(self.dx(k), c.flow_share, &t);
             let (_, cols) = self.cell_rows_columns(k);
             // Cell-model columns: hot in, hot out, hot bulk, cold in, cold out, cold bulk, wall.
-            let block: CellBlock = jac.map(|row| [row[0] + w_in * row[2], row[1] + w_out * row[2], row[3] + w_in * row[5], row[4] + w_out * row[5], row[6]]);
+            let mut block: CellBlock =
+                jac.map(|row| [row[0] + w_in * row[2], row[1] + w_out * row[2], row[3] + w_in * row[5], row[4] + w_out * row[5], row[6]]);
+            if let Some(st) = storage {
+                for row in block.iter_mut() {
+                    for v in row.iter_mut() {
+                        *v *= -st.bh;
+                    }
+                }
+                block[2][4] += st.wall[k];
+            }
             let wall = block[2];
             for row in &block[..2] {
                 let ratio = row[4] / wall[4];
@@ -211,11 +240,14 @@ impl System<'_> {
                 }
             }
         }
+        if let Some(st) = storage {
+            values.extend(self.net.nodes.iter().enumerate().filter(|(_, n)| n.kind == NodeKind::Cells).map(|(n, _)| st.node[n]));
+        }
     }
 
     /// Newton step from residuals `r` with the eliminated system: the nodes' right-hand
     /// side less each wall's share, solved by `lu`, then each wall from its own row.
-    fn step(&self, r: &[f64], blocks: &[CellBlock], lu: &mut Linear, step: &mut [f64]) -> Result<(), LuFailure> {
+    pub(crate) fn step(&self, r: &[f64], blocks: &[CellBlock], lu: &mut Linear, step: &mut [f64]) -> Result<(), LuFailure> {
         let nn = self.n_nodes();
         let (nodes, walls) = step.split_at_mut(nn);
         nodes.copy_from_slice(&r[..nn]);
@@ -239,7 +271,7 @@ impl System<'_> {
     }
 
     /// Position (m, along the first direction) of unknown `i`, for messages.
-    fn position_m(&self, i: usize) -> f64 {
+    pub(crate) fn position_m(&self, i: usize) -> f64 {
         let cell = if i >= self.n_nodes() { Some(i - self.n_nodes()) } else { self.net.cells.iter().position(|c| c.out.contains(&i)) };
         cell.and_then(|k| self.net.cells.get(k)).map_or(0.0, |c| c.position[0] * self.ex.length_m)
     }
@@ -392,7 +424,7 @@ pub fn solve_network(ex: &Exchanger, layout: &Layout, settings: &SteadySettings,
             });
         }
         if refactor {
-            sys.jacobian_values(&z, &mut values, &mut blocks);
+            sys.jacobian_values(&z, &mut values, &mut blocks, None);
             lu.factor(&values).map_err(singular)?;
             fresh = true;
         }

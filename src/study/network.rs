@@ -112,16 +112,7 @@ fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumpe
         let outlet = if side == Side::Hot { q.hot_outlet_c } else { q.cold_outlet_c };
         stream.pressure_drop(stream.channel.flow_length_m, stream.inlet_c, outlet, stream.inlet_pressure_pa, (w > 0.0).then(|| re / w))
     });
-    let field = |value: &dyn Fn(usize) -> f64| {
-        let (columns, rows) = net.plot_shape;
-        let mut values = vec![f64::NAN; columns * rows];
-        for (k, c) in net.cells.iter().enumerate() {
-            let col = ((c.position[0] * columns as f64) as usize).min(columns - 1);
-            let row = ((c.position[1] * rows as f64) as usize).min(rows - 1);
-            values[row * columns + col] = value(k);
-        }
-        Field { columns, rows, values }
-    };
+    let field = |value: &dyn Fn(usize) -> f64| Field::of_network(net, &(0..net.cells.len()).map(value).collect::<Vec<f64>>());
     let (x_label, y_label) = match layout {
         Layout::Crossflow(_) => ("along the hot flow (fraction)", "along the cold flow (fraction)"),
         Layout::CrossCounterflow(c) => (

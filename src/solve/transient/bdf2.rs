@@ -172,7 +172,21 @@ pub(super) enum StepOutcome {
 /// Lagrange extrapolation of the stored temperature profiles to time `t`.
 pub(super) fn extrapolate(hist: &[(f64, Vec<Vector3<f64>>)], t: f64) -> Vec<Vector3<f64>> {
     let k = hist.len();
-    let weights: Vec<f64> = (0..k).map(|j| (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - hist[m].0) / (hist[j].0 - hist[m].0))).collect();
+    let weights = lagrange_weights(&hist.iter().map(|h| h.0).collect::<Vec<_>>(), t);
     let n = hist[0].1.len();
     (0..n).map(|i| (0..k).fold(Vector3::zeros(), |acc, j| acc + hist[j].1[i] * weights[j])).collect()
+}
+
+/// [`extrapolate`] for flat state vectors.
+pub(super) fn extrapolate_flat(hist: &[(f64, Vec<f64>)], t: f64) -> Vec<f64> {
+    let k = hist.len();
+    let weights = lagrange_weights(&hist.iter().map(|h| h.0).collect::<Vec<_>>(), t);
+    let n = hist[0].1.len();
+    (0..n).map(|i| (0..k).map(|j| hist[j].1[i] * weights[j]).sum()).collect()
+}
+
+/// Weights of the Lagrange polynomial through the times `ts`, evaluated at `t`.
+fn lagrange_weights(ts: &[f64], t: f64) -> Vec<f64> {
+    let k = ts.len();
+    (0..k).map(|j| (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - ts[m]) / (ts[j] - ts[m]))).collect()
 }

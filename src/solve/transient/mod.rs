@@ -25,6 +25,7 @@
 mod bdf2;
 mod explicit;
 mod model;
+mod network;
 mod signal;
 
 use crate::model::Exchanger;
@@ -33,6 +34,7 @@ use bdf2::*;
 use explicit::*;
 use model::*;
 use nalgebra::{DVector, Vector3};
+pub use network::{simulate_network, NetworkRun};
 pub use signal::{Inputs, Signal};
 
 /// Where the run starts.
