@@ -27,26 +27,16 @@ impl Bdf2 {
     }
 
     pub(super) fn advance_to(&mut self, model: &Model, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
-        while self.t < stop - 1e-12 * stop.max(1.0) {
-            let h = self.h.min(stop - self.t);
-            match self.try_step(model, h, settings, stats)? {
-                StepOutcome::Accepted(next_h) => {
-                    stats.steps += 1;
-                    self.h = next_h;
-                }
-                StepOutcome::Rejected(next_h) => {
-                    stats.rejected_steps += 1;
-                    self.h = next_h;
-                    if self.h < 1e-12 * stop.max(1.0) {
-                        return Err(TransientError::Stalled { integrator: "implicit", time_s: self.t, reason: "step size underflow".into() });
-                    }
-                }
-            }
-            if stats.steps + stats.rejected_steps > settings.max_steps {
-                return Err(TransientError::Stalled { integrator: "implicit", time_s: self.t, reason: format!("more than {} steps", settings.max_steps) });
-            }
-        }
-        self.t = stop;
+        // `try_step` moves self.t itself on an accepted step; the shared loop keeps its own.
+        let (mut t, mut h) = (self.t, self.h);
+        advance_implicit(&mut t, &mut h, stop, settings, stats, |step, stats| {
+            Ok(match self.try_step(model, step, settings, stats)? {
+                StepOutcome::Accepted(next) => Ok(next),
+                StepOutcome::Rejected(next) => Err(next),
+            })
+        })?;
+        self.t = t;
+        self.h = h;
         Ok(())
     }
 

@@ -280,6 +280,110 @@ fn check_second_law(snap: &Snapshot, dx: f64, bounds: (f64, f64)) -> Result<(), 
     }
 }
 
+impl Sample {
+    /// The sample at `t` for the inputs `e`: outlets (hot, cold), stored energies (fluid,
+    /// wall), the wall temperatures, the fastest wall rate and the two integrals (net inflow,
+    /// hot heat).
+    #[allow(clippy::too_many_arguments)]
+    fn at(e: &Exchanger, t: f64, outlets: (f64, f64), fluid_energy_j: f64, wall_energy_j: f64, wall_c: &[f64], max_rate: f64, integrals: [f64; 2]) -> Self {
+        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
+        let (hot_out, cold_out) = outlets;
+        Sample {
+            time_s: t,
+            hot_inlet_C: e.hot.inlet_c,
+            cold_inlet_C: e.cold.inlet_c,
+            hot_flow_kg_s: e.hot.mass_flow_kg_s,
+            cold_flow_kg_s: e.cold.mass_flow_kg_s,
+            hot_outlet_C: hot_out,
+            cold_outlet_C: cold_out,
+            hot_duty_W: e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out)),
+            cold_duty_W: e.cold.mass_flow_kg_s * (cf.enthalpy(cold_out) - cf.enthalpy(e.cold.inlet_c)),
+            fluid_energy_J: fluid_energy_j,
+            wall_energy_J: wall_energy_j,
+            max_wall_C: wall_c.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+            max_wall_rate_K_s: max_rate,
+            net_inflow_J: integrals[0],
+            hot_heat_J: integrals[1],
+        }
+    }
+}
+
+/// Stop times of a run: every output interval, every input breakpoint (so responses are
+/// measured from the change itself) and the end, sorted and without repeats.
+fn output_stops(inputs: &Inputs, settings: &TransientSettings) -> Vec<f64> {
+    let t_end = settings.duration_s;
+    let mut stops: Vec<f64> = (1..).map(|k| k as f64 * settings.output_interval_s).take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0)).collect();
+    stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
+    stops.push(t_end);
+    stops.sort_by(|a, b| a.total_cmp(b));
+    stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
+    stops
+}
+
+impl TransientRun {
+    /// Record the output at `t`: the sample, and the snapshot where one was asked for near `t`.
+    fn keep(&mut self, t: f64, sample: Sample, snap: Snapshot, settings: &TransientSettings) {
+        let t_end = settings.duration_s;
+        for &ts in &settings.snapshot_times_s {
+            let nearest = (ts / settings.output_interval_s).round() * settings.output_interval_s;
+            if (t - nearest.min(t_end)).abs() < 1e-9 * t_end.max(1.0) && !self.snapshots.iter().any(|s| s.time_s == t) {
+                self.snapshots.push(snap.clone());
+            }
+        }
+        self.samples.push(sample);
+        self.final_snapshot = snap;
+    }
+
+    /// End the run early at `t` because of `e` (a stream left its fluid's data), keeping the
+    /// last state inside the limits as a snapshot; Err for any other failure.
+    fn stop_on(&mut self, t: f64, e: SolveError) -> Result<(), TransientError> {
+        match e {
+            SolveError::LeftRange { stream, position_m, temperature_c, .. } => {
+                self.stopped = Some(Stop { time_s: t, stream, position_m, temperature_C: temperature_c, reason: e.to_string() });
+                if self.snapshots.last().map(|s| s.time_s) != Some(self.final_snapshot.time_s) {
+                    self.snapshots.push(self.final_snapshot.clone());
+                }
+                Ok(())
+            }
+            other => Err(other.into()),
+        }
+    }
+}
+
+/// Advance an implicit integrator from `*t` to `stop`: `try_step(h)` gives Ok(next step) for
+/// an accepted step and Err(next step) for a rejected one.
+fn advance_implicit(
+    t: &mut f64,
+    h: &mut f64,
+    stop: f64,
+    settings: &TransientSettings,
+    stats: &mut Stats,
+    mut try_step: impl FnMut(f64, &mut Stats) -> Result<Result<f64, f64>, TransientError>,
+) -> Result<(), TransientError> {
+    while *t < stop - 1e-12 * stop.max(1.0) {
+        let step = h.min(stop - *t);
+        match try_step(step, stats)? {
+            Ok(next) => {
+                stats.steps += 1;
+                *t += step;
+                *h = next;
+            }
+            Err(next) => {
+                stats.rejected_steps += 1;
+                *h = next;
+                if *h < 1e-12 * stop.max(1.0) {
+                    return Err(TransientError::Stalled { integrator: "implicit", time_s: *t, reason: "step size underflow".into() });
+                }
+            }
+        }
+        if stats.steps + stats.rejected_steps > settings.max_steps {
+            return Err(TransientError::Stalled { integrator: "implicit", time_s: *t, reason: format!("more than {} steps", settings.max_steps) });
+        }
+    }
+    *t = stop;
+    Ok(())
+}
+
 /// Run a transient simulation of `ex` under `inputs`.
 pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, observer: &mut dyn TransientObserver) -> Result<TransientRun, TransientError> {
     let n = settings.cells.max(1);
@@ -325,15 +429,8 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
         y[n + i] = ex.cold.fluid.enthalpy(x0[i][1]);
         y[2 * n + i] = x0[i][2];
     }
-    // Stop times: outputs and input breakpoints.
     let t_end = settings.duration_s;
-    // Every input change is an output too, so responses are measured from the change itself,
-    // not from the first regular output after it.
-    let mut stops: Vec<f64> = (1..).map(|k| k as f64 * settings.output_interval_s).take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0)).collect();
-    stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
-    stops.push(t_end);
-    stops.sort_by(|a, b| a.total_cmp(b));
-    stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
+    let stops = output_stops(inputs, settings);
     let outputs: Vec<f64> = stops.clone();
 
     let mut run =
@@ -344,27 +441,11 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
     let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<bool, TransientError> {
         let (sample, snap) = model.sample(t, y);
         if let Err(e) = model.check(t, &snap) {
-            return match e {
-                SolveError::LeftRange { stream, position_m, temperature_c, .. } => {
-                    run.stopped = Some(Stop { time_s: t, stream, position_m, temperature_C: temperature_c, reason: e.to_string() });
-                    // The last state inside the limits, as a profile snapshot.
-                    if run.snapshots.last().map(|s| s.time_s) != Some(run.final_snapshot.time_s) {
-                        run.snapshots.push(run.final_snapshot.clone());
-                    }
-                    Ok(false)
-                }
-                other => Err(other.into()),
-            };
+            run.stop_on(t, e)?;
+            return Ok(false);
         }
         check_second_law(&snap, model.dx, bounds)?;
-        for &ts in &settings.snapshot_times_s {
-            let nearest = (ts / settings.output_interval_s).round() * settings.output_interval_s;
-            if (t - nearest.min(t_end)).abs() < 1e-9 * t_end.max(1.0) && !run.snapshots.iter().any(|s| s.time_s == t) {
-                run.snapshots.push(snap.clone());
-            }
-        }
-        run.samples.push(sample);
-        run.final_snapshot = snap;
+        run.keep(t, sample, snap, settings);
         Ok(true)
     };
     if !record(&mut run, 0.0, &y, &model)? {

@@ -79,28 +79,12 @@ impl Model<'_> {
         let (hot_faces, cold_faces) = g.faces(&x);
         let mut dy = DVector::zeros(self.len());
         self.derivative(t, y, &mut dy);
-        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
-        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
+        let outlets = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
         let fluid_energy: f64 = (0..n).map(|i| self.mass[0][i] * y[i] + self.mass[1][i] * y[n + i]).sum();
         let wall: Vec<f64> = (0..n).map(|i| y[2 * n + i]).collect();
         let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
-        let sample = Sample {
-            time_s: t,
-            hot_inlet_C: e.hot.inlet_c,
-            cold_inlet_C: e.cold.inlet_c,
-            hot_flow_kg_s: e.hot.mass_flow_kg_s,
-            cold_flow_kg_s: e.cold.mass_flow_kg_s,
-            hot_outlet_C: hot_out,
-            cold_outlet_C: cold_out,
-            hot_duty_W: e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out)),
-            cold_duty_W: e.cold.mass_flow_kg_s * (cf.enthalpy(cold_out) - cf.enthalpy(e.cold.inlet_c)),
-            fluid_energy_J: fluid_energy,
-            wall_energy_J: wall.iter().map(|t| self.wall_capacity * t).sum(),
-            max_wall_C: wall.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-            max_wall_rate_K_s: max_rate,
-            net_inflow_J: y[3 * n],
-            hot_heat_J: y[3 * n + 1],
-        };
+        let wall_energy = wall.iter().map(|t| self.wall_capacity * t).sum();
+        let sample = Sample::at(&e, t, outlets, fluid_energy, wall_energy, &wall, max_rate, [y[3 * n], y[3 * n + 1]]);
         (sample, Snapshot { time_s: t, hot_faces_c: hot_faces, cold_faces_c: cold_faces, wall_c: wall })
     }
 

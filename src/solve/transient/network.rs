@@ -68,29 +68,12 @@ impl NetModel<'_> {
         let nn = self.net.nodes.len();
         let mut r = vec![0.0; z.len()];
         sys.residuals(z, &mut r);
-        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
-        let (hot_out, cold_out) = (z[self.net.outlet[0]], z[self.net.outlet[1]]);
+        let outlets = (z[self.net.outlet[0]], z[self.net.outlet[1]]);
         let mut stored = Vec::new();
         self.stored(z, &mut stored);
         let walls = &z[nn..];
         let max_rate = (0..walls.len()).map(|k| r[nn + k] / self.wall_cap[k]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
-        let sample = Sample {
-            time_s: t,
-            hot_inlet_C: e.hot.inlet_c,
-            cold_inlet_C: e.cold.inlet_c,
-            hot_flow_kg_s: e.hot.mass_flow_kg_s,
-            cold_flow_kg_s: e.cold.mass_flow_kg_s,
-            hot_outlet_C: hot_out,
-            cold_outlet_C: cold_out,
-            hot_duty_W: e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out)),
-            cold_duty_W: e.cold.mass_flow_kg_s * (cf.enthalpy(cold_out) - cf.enthalpy(e.cold.inlet_c)),
-            fluid_energy_J: stored[..nn].iter().sum(),
-            wall_energy_J: stored[nn..].iter().sum(),
-            max_wall_C: walls.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-            max_wall_rate_K_s: max_rate,
-            net_inflow_J: integrals[0],
-            hot_heat_J: integrals[1],
-        };
+        let sample = Sample::at(&e, t, outlets, stored[..nn].iter().sum(), stored[nn..].iter().sum(), walls, max_rate, integrals);
         let (nodes, _) = z.split_at(nn);
         let cells: Vec<_> = (0..self.net.cells.len()).map(|k| temps(self.net, e.scheme, sys.inlet, nodes, walls, k)).collect();
         let snap = Snapshot {
@@ -167,26 +150,10 @@ impl NetBdf {
     }
 
     fn advance_to(&mut self, m: &NetModel, lin: &mut Linear, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
-        while self.t < stop - 1e-12 * stop.max(1.0) {
-            let h = self.h.min(stop - self.t);
-            match self.try_step(m, lin, h, settings, stats)? {
-                Ok(next) => {
-                    stats.steps += 1;
-                    self.h = next;
-                }
-                Err(next) => {
-                    stats.rejected_steps += 1;
-                    self.h = next;
-                    if self.h < 1e-12 * stop.max(1.0) {
-                        return Err(TransientError::Stalled { integrator: "implicit", time_s: self.t, reason: "step size underflow".into() });
-                    }
-                }
-            }
-            if stats.steps + stats.rejected_steps > settings.max_steps {
-                return Err(TransientError::Stalled { integrator: "implicit", time_s: self.t, reason: format!("more than {} steps", settings.max_steps) });
-            }
-        }
-        self.t = stop;
+        let (mut t, mut h) = (self.t, self.h);
+        advance_implicit(&mut t, &mut h, stop, settings, stats, |step, stats| self.try_step(m, lin, step, settings, stats))?;
+        self.h = h;
+        self.t = t;
         Ok(())
     }
 
@@ -363,11 +330,7 @@ pub fn simulate_network(
     let bounds = (lo - margin, hi + margin);
 
     let t_end = settings.duration_s;
-    let mut stops: Vec<f64> = (1..).map(|k| k as f64 * settings.output_interval_s).take_while(|&t| t < t_end - 1e-12 * t_end.max(1.0)).collect();
-    stops.extend(inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end));
-    stops.push(t_end);
-    stops.sort_by(|a, b| a.total_cmp(b));
-    stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
+    let stops = output_stops(inputs, settings);
 
     let mut stored0 = Vec::new();
     model.stored(&z0, &mut stored0);
@@ -382,27 +345,16 @@ pub fn simulate_network(
         stopped: None,
     };
     let record = |run: &mut TransientRun, t: f64, z: &[f64], integrals: [f64; 2]| -> Result<bool, TransientError> {
-        if let Err(e) = model.check(t, z, bounds) {
-            return match e {
-                TransientError::Solve(SolveError::LeftRange { stream, position_m, temperature_c, .. }) => {
-                    run.stopped = Some(Stop { time_s: t, stream, position_m, temperature_C: temperature_c, reason: e.to_string() });
-                    if run.snapshots.last().map(|s| s.time_s) != Some(run.final_snapshot.time_s) {
-                        run.snapshots.push(run.final_snapshot.clone());
-                    }
-                    Ok(false)
-                }
-                other => Err(other),
-            };
+        match model.check(t, z, bounds) {
+            Err(TransientError::Solve(e)) => {
+                run.stop_on(t, e)?;
+                return Ok(false);
+            }
+            Err(other) => return Err(other),
+            Ok(()) => {}
         }
         let (sample, snap) = model.sample(t, z, integrals);
-        for &ts in &settings.snapshot_times_s {
-            let nearest = (ts / settings.output_interval_s).round() * settings.output_interval_s;
-            if (t - nearest.min(t_end)).abs() < 1e-9 * t_end.max(1.0) && !run.snapshots.iter().any(|s| s.time_s == t) {
-                run.snapshots.push(snap.clone());
-            }
-        }
-        run.samples.push(sample);
-        run.final_snapshot = snap;
+        run.keep(t, sample, snap, settings);
         Ok(true)
     };
     if !record(&mut run, 0.0, bdf.z(), [0.0, 0.0])? {
