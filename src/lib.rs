@@ -39,6 +39,9 @@ pub mod text;
 pub mod transfer;
 pub mod verify;
 
+#[cfg(test)]
+mod scratch;
+
 pub use case::Case;
 pub use model::Exchanger;
 pub use output::{write_steady, write_transient};

@@ -4,6 +4,8 @@
 //! show (`# expect-absent:`). The command line is run on each, as a user would. Every message
 //! must also be clean: no panic, no NaN, no raw control characters, not huge.
 
+mod common;
+
 use std::path::PathBuf;
 use std::process::Command;
 
@@ -36,8 +38,7 @@ fn corpus_copy(dir: &std::path::Path, scratch: &std::path::Path) -> Vec<PathBuf>
 #[test]
 fn every_bad_case_gets_a_clear_message_and_exit_code() {
     let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/bad_cases");
-    let scratch = std::env::temp_dir().join(format!("hxgrid-bad-{}", std::process::id()));
-    std::fs::create_dir_all(&scratch).unwrap();
+    let scratch = common::Scratch::new("bad");
     let files = corpus_copy(&dir, &scratch);
     assert!(files.len() >= 40, "the corpus has {} files", files.len());
     let mut failures = Vec::new();

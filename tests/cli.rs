@@ -1,5 +1,7 @@
 //! The command line as a user meets it: run, check, new, exit codes, output safety.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
@@ -11,11 +13,8 @@ fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
 }
 
-fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("hxgrid-cli-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
+fn scratch(name: &str) -> common::Scratch {
+    common::Scratch::new(&format!("cli-{name}"))
 }
 
 fn run(args: &[&str], dir: &Path) -> Output {

@@ -2,6 +2,8 @@
 //! Newton step from any start solves it), energy closes, the demos run, and the outputs of a
 //! network carry its fields.
 
+mod common;
+
 use hxgrid::model::{Arrangement, CrossCounterflow, Crossflow, Layout, Mixing, ShellAndTube, Side};
 use hxgrid::solve::{solve_network, SilentObserver, SteadySettings};
 use hxgrid::study::{rate, RatingOptions};
@@ -88,7 +90,8 @@ fn more_passes_approach_counterflow() {
 fn network_demos_write_fields() {
     let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
     for name in ["crossflow-plate-recuperator", "shell-and-tube-water-cooler", "tube-bank-air-heater"] {
-        let out = std::env::temp_dir().join(format!("hxgrid-network-{}-{name}", std::process::id()));
+        let scratch = common::Scratch::new(&format!("network-{name}"));
+        let out = scratch.join("res");
         let status = std::process::Command::new(env!("CARGO_BIN_EXE_hxgrid"))
             .args(["run", root.join("cases").join(format!("{name}.toml")).to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet"])
             .status()
@@ -103,7 +106,6 @@ fn network_demos_write_fields() {
         assert!(csv.lines().nth(1).unwrap().starts_with("0,0,0,"), "{name}: indices as whole numbers");
         let summary: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(out.join("summary.json")).unwrap()).unwrap();
         assert!(summary["network"]["closed_form_effectiveness"].as_f64().unwrap() > 0.0);
-        std::fs::remove_dir_all(&out).unwrap();
     }
 }
 

@@ -3,6 +3,8 @@
 //! `output/`), leaves either the complete old or the complete new results folder visible
 //! when killed at any moment, and lets concurrent runs to one folder all succeed.
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 use std::time::{Duration, Instant};
@@ -11,11 +13,8 @@ fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_hxgrid"))
 }
 
-fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("hxgrid-safety-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
+fn scratch(name: &str) -> common::Scratch {
+    common::Scratch::new(&format!("safety-{name}"))
 }
 
 fn run(args: &[&str], dir: &Path) -> Output {
@@ -183,10 +182,11 @@ fn a_kill_at_any_moment_leaves_a_complete_folder_visible() {
     // Killed at moments spread over a whole run (solving, writing the files, swapping),
     // timed from one uninterrupted run into another folder.
     let start = Instant::now();
-    let o = run(&["run", big, "--out", "timed", "-q", "--all-cells"], &dir);
+    let timed = scratch("timed");
+    let o = run(&["run", big, "--out", timed.join("res").to_str().unwrap(), "-q", "--all-cells"], &dir);
     assert!(o.status.success(), "{}", text(&o));
     let whole = start.elapsed();
-    std::fs::remove_dir_all(dir.join("timed")).unwrap();
+    drop(timed);
     for k in 1..=12 {
         let mut child = bin().args(["run", big, "--out", "res", "-q", "--all-cells"]).current_dir(&dir).spawn().unwrap();
         std::thread::sleep(whole.mul_f64(k as f64 / 12.0));

@@ -2,6 +2,8 @@
 //! number, no JSON or SVG holds NaN or infinity (nor a JSON `null` where a number belongs:
 //! the only nulls allowed are the documented "not computed" values).
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
@@ -75,9 +77,7 @@ fn scan_folder(dir: &Path) -> usize {
 #[test]
 fn every_demo_output_holds_only_finite_numbers() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let scratch = std::env::temp_dir().join(format!("hxgrid-scan-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&scratch);
-    std::fs::create_dir_all(&scratch).unwrap();
+    let scratch = common::Scratch::new("scan");
     let mut cases: Vec<PathBuf> =
         std::fs::read_dir(root.join("cases")).unwrap().map(|e| e.unwrap().path()).filter(|p| p.extension().is_some_and(|e| e == "toml")).collect();
     cases.sort();
@@ -93,5 +93,4 @@ fn every_demo_output_holds_only_finite_numbers() {
         }
     }
     assert!(scanned >= 5 * cases.len(), "{scanned} files");
-    let _ = std::fs::remove_dir_all(&scratch);
 }

@@ -4,6 +4,8 @@
 //! stopped [A]: no duty, the flowing stream unchanged, the stopped fluid and the wall at the
 //! flowing stream's temperature.
 
+mod common;
+
 use hxgrid::scenario::TransientReport;
 use std::path::Path;
 
@@ -159,9 +161,7 @@ fn a_run_that_reaches_saturation_stops_and_keeps_its_results() {
     assert!(last.time_s < stop.time_s && last.time_s > stop.time_s - 2.0, "{}", last.time_s);
     assert_eq!(r.hot_outlet.steady_final_C, None);
     // From the command line: results written, exit 6.
-    let dir = std::env::temp_dir().join(format!("hxgrid-stop-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&dir);
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = common::Scratch::new("stop");
     std::fs::write(dir.join("boil.toml"), &text).unwrap();
     let o = std::process::Command::new(env!("CARGO_BIN_EXE_hxgrid")).args(["simulate", "boil.toml", "--out", "res", "-q"]).current_dir(&dir).output().unwrap();
     assert_eq!(o.status.code(), Some(6), "{}", String::from_utf8_lossy(&o.stderr));
@@ -169,7 +169,6 @@ fn a_run_that_reaches_saturation_stops_and_keeps_its_results() {
     assert_eq!(json["status"], "stopped");
     assert!(json["stop"]["time_s"].is_number());
     assert!(std::fs::read_to_string(dir.join("res/timeseries.csv")).unwrap().lines().count() > 900);
-    let _ = std::fs::remove_dir_all(&dir);
 }
 
 /// Metal that stores heat besides the separating wall: the outer pipe of a double pipe

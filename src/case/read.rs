@@ -58,11 +58,11 @@ mod tests {
     fn devices_folders_and_huge_files_are_refused_without_reading_them() {
         assert!(text_file(Path::new("/dev/zero"), DATA_MAX_BYTES, None).unwrap_err().contains("not a regular file"));
         assert!(text_file(Path::new("/"), DATA_MAX_BYTES, None).unwrap_err().contains("not a regular file"));
-        let p = std::env::temp_dir().join(format!("hxgrid-read-{}.csv", std::process::id()));
+        let dir = crate::scratch::Scratch::new("read");
+        let p = dir.join("table.csv");
         std::fs::write(&p, "\u{feff}a\nb\nc\n").unwrap();
         assert_eq!(text_file(&p, 100, Some(3)).unwrap(), "a\nb\nc\n");
         assert!(text_file(&p, 100, Some(2)).unwrap_err().contains("3 lines"));
         assert!(text_file(&p, 4, None).unwrap_err().contains("bytes"));
-        let _ = std::fs::remove_file(&p);
     }
 }

@@ -12,7 +12,7 @@
 //!   elsewhere (or on a file system without exchange) two renames through
 //!   `.<name>.hxgrid-old-<pid>-<seq>`, which the next run restores if a kill fell between them.
 //! - Staging and old folders left by processes that no longer exist are cleaned up by the
-//!   next run writing beside them (only if they are empty or carry hxgrid's marker).
+//!   next run writing beside them (only if they carry hxgrid's marker).
 //! - Removing a folder deletes only the files its marker lists, the marker and the then
 //!   empty folder (`remove_own_folder`): hxgrid never removes a whole tree.
 //! - Concurrent writers to one folder each stage their own files; the swap is serialised by
@@ -292,8 +292,10 @@ fn recover_stale(dir: &Path, parent: &Path, leaf: &str) {
             continue;
         }
         let path = entry.path();
-        let ours = marker_files(&path).is_some() || fs::read_dir(&path).map(|mut d| d.next().is_none()).unwrap_or(false);
-        if !ours {
+        // Only a folder carrying hxgrid's marker is hxgrid's: a staging folder gets it
+        // straight after it is made, so even an empty folder with this name is left alone
+        // (it may be someone's; at worst it is an empty leftover of a kill in that instant).
+        if marker_files(&path).is_none() {
             continue;
         }
         if kind == OLD && fs::symlink_metadata(dir).is_err() {
@@ -308,11 +310,10 @@ fn recover_stale(dir: &Path, parent: &Path, leaf: &str) {
 mod tests {
     use super::*;
 
-    fn scratch(name: &str) -> PathBuf {
-        let d = std::env::temp_dir().join(format!("hxgrid-folder-{name}-{}", std::process::id()));
-        let _ = fs::remove_dir_all(&d);
-        fs::create_dir_all(&d).unwrap();
-        d
+    use crate::scratch::Scratch;
+
+    fn scratch(name: &str) -> Scratch {
+        Scratch::new(&format!("folder-{name}"))
     }
 
     fn write(dir: &Path, body: &str) -> Result<(), OutputError> {
@@ -346,7 +347,6 @@ mod tests {
         let empty = root.join("empty");
         fs::create_dir(&empty).unwrap();
         write(&empty, "ok").unwrap();
-        let _ = fs::remove_dir_all(&root);
     }
 
     #[test]
@@ -358,7 +358,6 @@ mod tests {
         assert!(r.is_err());
         assert_eq!(fs::read_to_string(dir.join("a.txt")).unwrap(), "good");
         assert_eq!(fs::read_dir(&root).unwrap().count(), 1);
-        let _ = fs::remove_dir_all(&root);
     }
 
     #[test]
@@ -381,7 +380,6 @@ mod tests {
         assert_eq!(fs::read_to_string(dir.join("a.txt")).unwrap(), "old");
         assert!(!staging.exists());
         assert!(lookalike.join("mine.txt").exists());
-        let _ = fs::remove_dir_all(&root);
     }
 
     #[test]
@@ -399,6 +397,5 @@ mod tests {
         assert_eq!(fs::read_to_string(root.join("res.hxgrid-old-1-0.kept/stray.txt")).unwrap(), "someone else's");
         assert!(!root.join("res.hxgrid-old-1-0.kept/a.txt").exists());
         assert_eq!(fs::read_to_string(root.join("escape.txt")).unwrap(), "not ours");
-        let _ = fs::remove_dir_all(&root);
     }
 }

@@ -48,3 +48,9 @@ pub fn demo_case(name: &str) -> hxgrid::case::Case {
     let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases").join(name);
     hxgrid::case::load(&path).expect("demo case is valid")
 }
+
+/// Scratch folders: created new, removed only if still the folder this process made.
+#[path = "../../src/scratch.rs"]
+mod scratch_folder;
+#[allow(unused_imports)] // not every test binary makes scratch folders
+pub use scratch_folder::Scratch;
