@@ -249,6 +249,15 @@ fn lane_nodes(b: &mut Builder, side: Side, mixing: Mixing, rows: usize, lanes: u
         .collect()
 }
 
+/// A per-stream pair (hot, cold) from the values of stream `first` and of the other one.
+fn pair<T: Copy>(first: Side, a: T, b: T) -> [T; 2] {
+    if first == Side::Hot {
+        [a, b]
+    } else {
+        [b, a]
+    }
+}
+
 fn feed(node: Option<usize>) -> Feed {
     node.map_or(Feed::Inlet, Feed::Node)
 }
@@ -276,14 +285,10 @@ fn crossflow(c: &Crossflow, nx: usize) -> Network {
     b.finish([hot_out, cold_out], (nx, ny))
 }
 
-/// Distinct nodes, in order (a mixed row lists its one node once per lane).
+/// Distinct nodes, in order: a mixed row lists its one node once per lane, side by side.
 fn dedup(nodes: &[usize]) -> Vec<usize> {
-    let mut out: Vec<usize> = Vec::with_capacity(nodes.len());
-    for &n in nodes {
-        if !out.contains(&n) {
-            out.push(n);
-        }
-    }
+    let mut out = nodes.to_vec();
+    out.dedup();
     out
 }
 
@@ -298,13 +303,9 @@ fn cross_counterflow(c: &CrossCounterflow, nw: usize) -> Network {
     let passing: Vec<Vec<Vec<usize>>> = (0..np).map(|_| lane_nodes(&mut b, ps, Mixing::Unmixed, nw, nd)).collect();
     // Through stream: rows are (pass, depth) in its order of travel, lanes the positions w.
     let through: Vec<Vec<Vec<usize>>> = (0..np).map(|_| lane_nodes(&mut b, ts, c.through, nd, nw)).collect();
-    let mut headers = Vec::with_capacity(np);
-    for pass in &passing {
-        let last: Vec<usize> = pass[nw - 1].clone();
-        headers.push(if c.mixed_between_passes { Some(b.mix(ps, last)) } else { None });
-    }
-    let id_order: Vec<(usize, usize, usize)> = (0..np).flat_map(|q| (0..nw).flat_map(move |w| (0..nd).map(move |d| (q, w, d)))).collect();
-    for (q, w, d) in id_order {
+    let headers: Vec<Option<usize>> = passing.iter().map(|pass| c.mixed_between_passes.then(|| b.mix(ps, pass[nw - 1].clone()))).collect();
+    let cells = (0..np).flat_map(|q| (0..nw).flat_map(move |w| (0..nd).map(move |d| (q, w, d))));
+    for (q, w, d) in cells {
         let step = if q.is_multiple_of(2) { w } else { nw - 1 - w };
         let passing_in = if step > 0 {
             Some(passing[q][step - 1][d])
@@ -320,29 +321,20 @@ fn cross_counterflow(c: &CrossCounterflow, nw: usize) -> Network {
         } else {
             None
         };
-        let mut f = [Feed::Inlet; 2];
-        let mut out = [0; 2];
-        let mut flow_share = [0.0; 2];
-        f[ps.index()] = feed(passing_in);
-        f[ts.index()] = feed(through_in);
-        out[ps.index()] = passing[q][step][d];
-        out[ts.index()] = through[q][d][w];
-        flow_share[ps.index()] = 1.0 / nd as f64;
-        flow_share[ts.index()] = 1.0 / nw as f64;
         // Plot: w across, depth downwards in the through stream's direction of travel.
         let depth = (np - 1 - q) * nd + d;
         b.cells.push(NetCell {
-            feed: f,
-            out,
-            flow_share,
+            feed: pair(ps, feed(passing_in), feed(through_in)),
+            out: pair(ps, passing[q][step][d], through[q][d][w]),
+            flow_share: pair(ps, 1.0 / nd as f64, 1.0 / nw as f64),
             area_share: 1.0 / (np * nw * nd) as f64,
             index: [w, d, q],
             position: [(w as f64 + 0.5) / nw as f64, (depth as f64 + 0.5) / (np * nd) as f64],
         });
     }
-    let mut outlet = [0; 2];
-    outlet[ps.index()] = headers[np - 1].unwrap_or_else(|| b.mix(ps, (0..nd).map(|d| passing[np - 1][nw - 1][d]).collect()));
-    outlet[ts.index()] = b.mix(ts, dedup(&through[0][nd - 1]));
+    let passing_out = headers[np - 1].unwrap_or_else(|| b.mix(ps, passing[np - 1][nw - 1].clone()));
+    let through_out = b.mix(ts, dedup(&through[0][nd - 1]));
+    let outlet = pair(ps, passing_out, through_out);
     b.finish(outlet, (nw, np * nd))
 }
 
@@ -376,20 +368,11 @@ fn shell_and_tube(s: &ShellAndTube, n: usize) -> Network {
                 } else {
                     None
                 };
-                let mut f = [Feed::Inlet; 2];
-                let mut out = [0; 2];
-                let mut flow_share = [0.0; 2];
-                f[sh.index()] = feed(shell_in);
-                f[tu.index()] = feed(tube_in);
-                out[sh.index()] = station[k][i];
-                out[tu.index()] = tube[k][p][step];
-                flow_share[sh.index()] = 1.0 / np as f64;
-                flow_share[tu.index()] = 1.0;
                 let column = (ns - 1 - k) * n + i;
                 b.cells.push(NetCell {
-                    feed: f,
-                    out,
-                    flow_share,
+                    feed: pair(sh, feed(shell_in), feed(tube_in)),
+                    out: pair(sh, station[k][i], tube[k][p][step]),
+                    flow_share: pair(sh, 1.0 / np as f64, 1.0),
                     area_share: 1.0 / (ns * np * n) as f64,
                     index: [i, p, k],
                     position: [(column as f64 + 0.5) / (ns * n) as f64, (p as f64 + 0.5) / np as f64],
@@ -397,9 +380,7 @@ fn shell_and_tube(s: &ShellAndTube, n: usize) -> Network {
             }
         }
     }
-    let mut outlet = [0; 2];
-    outlet[sh.index()] = station[0][n - 1];
-    outlet[tu.index()] = tube[ns - 1][np - 1][n - 1];
+    let outlet = pair(sh, station[0][n - 1], tube[ns - 1][np - 1][n - 1]);
     b.finish(outlet, (ns * n, np))
 }
 

@@ -95,9 +95,49 @@ pub trait FileWriter<R>: Sync {
     fn name(&self) -> &'static str;
     /// Write `report` into the file at `path`.
     fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError>;
-    /// Whether this report has this file (a network has field plots, an axial line profiles).
-    fn applies(&self, _report: &R) -> bool {
-        true
+    /// Which reports have this file.
+    fn applies(&self) -> Applies {
+        Applies::Always
+    }
+}
+
+/// Which steady reports have a file: a network has field plots and its outlets, an axial line
+/// its pressure profile.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Applies {
+    /// Every report.
+    Always,
+    /// Reports on an axial line of cells.
+    Axial,
+    /// Reports on a cell network.
+    Network,
+}
+
+impl Applies {
+    fn to(self, network: bool) -> bool {
+        match self {
+            Applies::Always => true,
+            Applies::Axial => !network,
+            Applies::Network => network,
+        }
+    }
+}
+
+/// Whether a report is of a network (for [`Applies`]).
+pub trait Arranged {
+    /// True for a cell network.
+    fn is_network(&self) -> bool;
+}
+
+impl Arranged for SteadyReport {
+    fn is_network(&self) -> bool {
+        self.fields.is_some()
+    }
+}
+
+impl Arranged for TransientReport {
+    fn is_network(&self) -> bool {
+        self.network.is_some()
     }
 }
 
@@ -105,7 +145,7 @@ pub trait FileWriter<R>: Sync {
 struct Writer<R: 'static> {
     name: &'static str,
     write: fn(&R, &Path, WriteOptions) -> Result<(), OutputError>,
-    applies: fn(&R) -> bool,
+    applies: Applies,
 }
 
 impl<R> FileWriter<R> for Writer<R> {
@@ -115,21 +155,9 @@ impl<R> FileWriter<R> for Writer<R> {
     fn write(&self, report: &R, path: &Path, options: WriteOptions) -> Result<(), OutputError> {
         (self.write)(report, path, options)
     }
-    fn applies(&self, report: &R) -> bool {
-        (self.applies)(report)
+    fn applies(&self) -> Applies {
+        self.applies
     }
-}
-
-fn always<R>(_: &R) -> bool {
-    true
-}
-
-fn axial(r: &SteadyReport) -> bool {
-    r.fields.is_none()
-}
-
-fn network(r: &SteadyReport) -> bool {
-    r.fields.is_some()
 }
 
 /// The files of a steady run, in the order written (see [`FileWriter::applies`] for which
@@ -143,17 +171,17 @@ pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
                 summary["profile_csv_stride"] = profile_stride(r.profile.len(), options).into();
                 write_text(path, &(serde_json::to_string_pretty(&summary).expect("value serialises") + "\n"))
             },
-            applies: always,
+            applies: Applies::Always,
         },
         Writer {
             name: "profiles.csv",
             write: |r, path, options| write_with(path, |w| csv::profiles(r, profile_stride(r.profile.len(), options), w)),
-            applies: always,
+            applies: Applies::Always,
         },
-        Writer { name: "temperatures.svg", write: |r, path, _| svg::temperatures(r, path), applies: always },
-        Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path), applies: always },
-        Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path), applies: axial },
-        Writer { name: "outlets.svg", write: |r, path, _| svg::outlets(r, path), applies: network },
+        Writer { name: "temperatures.svg", write: |r, path, _| svg::temperatures(r, path), applies: Applies::Always },
+        Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path), applies: Applies::Always },
+        Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path), applies: Applies::Axial },
+        Writer { name: "outlets.svg", write: |r, path, _| svg::outlets(r, path), applies: Applies::Network },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<SteadyReport>).collect()
 }
@@ -164,19 +192,19 @@ pub fn transient_files() -> Vec<&'static dyn FileWriter<TransientReport>> {
         Writer {
             name: "transient.json",
             write: |r, path, _| write_text(path, &(serde_json::to_string_pretty(r).expect("report serialises") + "\n")),
-            applies: always,
+            applies: Applies::Always,
         },
-        Writer { name: "timeseries.csv", write: |r, path, _| write_with(path, |w| csv::timeseries(r, w)), applies: always },
-        Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)), applies: always },
-        Writer { name: "response.svg", write: |r, path, _| svg::response(r, path), applies: always },
-        Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path), applies: always },
+        Writer { name: "timeseries.csv", write: |r, path, _| write_with(path, |w| csv::timeseries(r, w)), applies: Applies::Always },
+        Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)), applies: Applies::Always },
+        Writer { name: "response.svg", write: |r, path, _| svg::response(r, path), applies: Applies::Always },
+        Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path), applies: Applies::Always },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<TransientReport>).collect()
 }
 
 /// Names of the files a steady run on an axial line writes, relative to its folder.
 pub fn steady_file_names() -> Vec<&'static str> {
-    steady_files().iter().filter(|f| f.name() != "outlets.svg").map(|f| f.name()).collect()
+    steady_files().iter().filter(|f| f.applies().to(false)).map(|f| f.name()).collect()
 }
 
 /// Names of the files a transient run writes.
@@ -185,7 +213,7 @@ pub fn transient_file_names() -> Vec<&'static str> {
 }
 
 /// Write every file of `files` for `report` into `dir` through one staging folder.
-fn write_files<R: serde::Serialize>(
+fn write_files<R: serde::Serialize + Arranged>(
     report: &R,
     root: &str,
     dir: &Path,
@@ -195,7 +223,7 @@ fn write_files<R: serde::Serialize>(
     if let Some(what) = finite::first_non_finite(report, root) {
         return Err(OutputError::NonFinite { what });
     }
-    let files: Vec<_> = files.iter().filter(|f| f.applies(report)).collect();
+    let files: Vec<_> = files.iter().filter(|f| f.applies().to(report.is_network())).collect();
     let names: Vec<&str> = files.iter().map(|f| f.name()).collect();
     folder::write_folder(dir, &names, |staging| files.iter().try_for_each(|f| f.write(report, &staging.join(f.name()), options)))?;
     Ok(names.iter().map(|f| dir.join(f)).collect())

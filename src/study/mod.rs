@@ -34,17 +34,29 @@ pub fn observed_order(coarse: f64, medium: f64, fine: f64, ratio: f64) -> Option
     Some((d1 / d2).ln() / ratio.ln())
 }
 
-/// Solve at `base` cells and at `levels − 1` successive doublings (levels ≥ 3 for an
-/// observed order).
-pub fn grid_study(ex: &Exchanger, settings: &SteadySettings, base: usize, levels: usize) -> Result<GridStudy, SolveError> {
-    if let Some(layout) = ex.arrangement.layout() {
-        return network::grid_study(ex, &layout, settings, base, levels);
+/// Newton iterations, duty and outlets of a solve at `cells` along the first direction (a
+/// network's cells across scaled with them): what grid studies and error estimates compare.
+fn quantities_at(ex: &Exchanger, settings: &SteadySettings, cells: usize) -> Result<(usize, KeyQuantities), SolveError> {
+    match ex.arrangement.layout() {
+        None => {
+            let s = solve_steady(ex, &SteadySettings { cells, ..settings.clone() }, &mut SilentObserver)?;
+            Ok((s.iterations, key_quantities(ex, &s)))
+        }
+        Some(layout) => {
+            let s = network::solve_at(ex, &layout, settings, cells, &mut SilentObserver)?;
+            Ok((s.iterations, network::key_quantities(ex, &s)))
+        }
     }
+}
+
+/// Solve at `base` cells and at `levels − 1` successive doublings (levels ≥ 3 for an
+/// observed order); a network doubles every direction.
+pub fn grid_study(ex: &Exchanger, settings: &SteadySettings, base: usize, levels: usize) -> Result<GridStudy, SolveError> {
     let mut out = Vec::new();
     for k in 0..levels.max(2) {
         let cells = base << k;
-        let s = solve_steady(ex, &SteadySettings { cells, ..settings.clone() }, &mut SilentObserver)?;
-        out.push(StudyLevel { cells, iterations: s.iterations, values: key_quantities(ex, &s) });
+        let (iterations, values) = quantities_at(ex, settings, cells)?;
+        out.push(StudyLevel { cells, iterations, values });
     }
     let n = out.len();
     let (fine, medium) = (out[n - 1].values, out[n - 2].values);
@@ -60,6 +72,20 @@ pub fn grid_study(ex: &Exchanger, settings: &SteadySettings, base: usize, levels
         extrapolated,
         levels: out,
     })
+}
+
+/// The grid error of `fine` (at `cells`) from a solve at half the cells and Richardson at the
+/// scheme's formal order; None for a single cell.
+fn grid_error(ex: &Exchanger, settings: &SteadySettings, cells: usize, fine: KeyQuantities) -> Result<Option<GridError>, SolveError> {
+    if cells < 2 {
+        return Ok(None);
+    }
+    let coarse_cells = cells / 2;
+    let (_, coarse) = quantities_at(ex, settings, coarse_cells)?;
+    let ratio = cells as f64 / coarse_cells as f64;
+    let order = ex.scheme.formal_order();
+    let extrapolated = fine.zip(&coarse, |f, c| richardson(f, c, ratio, order));
+    Ok(Some(GridError { coarse_cells, order, estimated_error: fine.zip(&extrapolated, |f, e| f - e), extrapolated }))
 }
 
 /// What a steady rating asks for besides the case itself.
@@ -78,27 +104,17 @@ pub fn rate(
     options: &RatingOptions,
     observer: &mut dyn Observer,
 ) -> Result<SteadyReport, SolveError> {
-    if let Some(layout) = ex.arrangement.layout() {
-        return network::rate(case_name, ex, &layout, settings, options, observer);
-    }
-    let sol = solve_steady(ex, settings, observer)?;
     let lumped = lumped::rate(ex);
-    let grid_error_estimate = if sol.cells >= 2 {
-        let coarse_cells = sol.cells / 2;
-        let coarse = solve_steady(ex, &SteadySettings { cells: coarse_cells, ..settings.clone() }, &mut SilentObserver)?;
-        let (fq, cq) = (key_quantities(ex, &sol), key_quantities(ex, &coarse));
-        let ratio = sol.cells as f64 / coarse_cells as f64;
-        let order = ex.scheme.formal_order();
-        let extrapolated = fq.zip(&cq, |f, c| richardson(f, c, ratio, order));
-        Some(GridError { coarse_cells, order, estimated_error: fq.zip(&extrapolated, |f, e| f - e), extrapolated })
-    } else {
-        None
+    let solved = match ex.arrangement.layout() {
+        None => solved_line(ex, &solve_steady(ex, settings, observer)?),
+        Some(layout) => network::solved(ex, &layout, &crate::solve::solve_network(ex, &layout, settings, observer)?),
     };
+    let grid_error_estimate = grid_error(ex, settings, solved.cells, solved.q)?;
     let grid_study = match options.study_levels {
         Some(levels) => Some(grid_study(ex, settings, settings.cells, levels)?),
         None => None,
     };
-    let report = assemble(case_name, ex, solved_line(ex, &sol), lumped, grid_error_estimate, grid_study);
+    let report = assemble(case_name, ex, solved, lumped, grid_error_estimate, grid_study);
     check_local_pressure(ex, &report)?;
     Ok(report)
 }
@@ -150,8 +166,8 @@ pub(crate) struct Solved {
     pub faces_m: Vec<f64>,
     /// Hot and cold face temperatures.
     pub faces_c: [Vec<f64>; 2],
-    /// Network extras.
-    pub network: Option<(NetworkSummary, NetworkFields)>,
+    /// A network's layout, outlet spreads (hot, cold) and fields.
+    pub network: Option<(crate::model::Layout, [OutletSpread; 2], NetworkFields)>,
 }
 
 /// The solution on an axial line, ready for [`assemble`].
@@ -295,12 +311,19 @@ pub(crate) fn assemble(
         }
     }
     let (network, fields) = match sol.network {
-        Some((mut summary, fields)) => {
+        Some((layout, [hot_outlet, cold_outlet], fields)) => {
             // The closed form at the grid's own NTU and capacity ratio: what separates the
             // grid from the lumped result apart from property variation.
             let min_side = if dth.abs() >= dtc.abs() { crate::model::Side::Hot } else { crate::model::Side::Cold };
             let cr = if dt_big > 0.0 { dt_small / dt_big } else { 0.0 };
-            summary.closed_form_effectiveness = lumped::effectiveness(arr, ua / c_min, cr, min_side);
+            let summary = NetworkSummary {
+                layout,
+                cells_total: sol.details.len(),
+                closed_form_effectiveness: lumped::effectiveness(arr, ua / c_min, cr, min_side),
+                closed_form_exact: lumped::closed_form_is_exact(arr),
+                hot_outlet,
+                cold_outlet,
+            };
             if !summary.closed_form_exact {
                 warnings.push(format!(
                     "the lumped result for {} uses an approximate closed form (see README, 'Arrangements'); the grid result does not",

@@ -1,12 +1,10 @@
-//! Rating a cell network: the solve at the case's grid, a solve at half the cells in every
-//! direction for the grid error, grid studies that refine every direction together, and
-//! the network's fields and outlet spread for the report.
+//! What rating a cell network adds: its duty and outlets, its solves at other grids (every
+//! direction scaled together), and its fields and outlet spread for the report.
 
-use super::{assemble, observed_order, richardson, RatingOptions, Solved};
-use crate::lumped;
+use super::Solved;
 use crate::model::{Exchanger, Layout, Side};
 use crate::results::*;
-use crate::solve::{solve_network, NetworkSolution, Observer, SilentObserver, SolveError, SteadySettings};
+use crate::solve::{solve_network, NetworkSolution, Observer, SolveError, SteadySettings};
 
 /// Duty and outlets of a network solution (duty from the hot stream's enthalpy change).
 pub fn key_quantities(ex: &Exchanger, s: &NetworkSolution) -> KeyQuantities {
@@ -33,60 +31,8 @@ pub fn solve_at(ex: &Exchanger, layout: &Layout, settings: &SteadySettings, cell
     solve_network(ex, &scaled(layout, settings.cells, cells), &SteadySettings { cells, ..settings.clone() }, observer)
 }
 
-/// Grid study of a network: `levels` solves from `base` cells, each doubling every direction.
-pub fn grid_study(ex: &Exchanger, layout: &Layout, settings: &SteadySettings, base: usize, levels: usize) -> Result<GridStudy, SolveError> {
-    let mut out = Vec::new();
-    for k in 0..levels.max(2) {
-        let cells = base << k;
-        let s = solve_at(ex, layout, settings, cells, &mut SilentObserver)?;
-        out.push(StudyLevel { cells, iterations: s.iterations, values: key_quantities(ex, &s) });
-    }
-    let n = out.len();
-    let (fine, medium) = (out[n - 1].values, out[n - 2].values);
-    let order = ex.scheme.formal_order();
-    let extrapolated = fine.zip(&medium, |f, c| richardson(f, c, 2.0, order));
-    let observed = |get: fn(&KeyQuantities) -> f64| (n >= 3).then(|| observed_order(get(&out[n - 3].values), get(&medium), get(&fine), 2.0)).flatten();
-    Ok(GridStudy {
-        formal_order: order,
-        observed_order: ObservedOrder { duty: observed(|q| q.duty_w), hot_outlet: observed(|q| q.hot_outlet_c), cold_outlet: observed(|q| q.cold_outlet_c) },
-        finest_estimated_error: fine.zip(&extrapolated, |f, e| f - e),
-        extrapolated,
-        levels: out,
-    })
-}
-
-/// Rate a network arrangement (see [`super::rate`]).
-pub fn rate(
-    case_name: &str,
-    ex: &Exchanger,
-    layout: &Layout,
-    settings: &SteadySettings,
-    options: &RatingOptions,
-    observer: &mut dyn Observer,
-) -> Result<SteadyReport, SolveError> {
-    let sol = solve_network(ex, layout, settings, observer)?;
-    let lumped = lumped::rate(ex);
-    let grid_error_estimate = if sol.cells >= 2 {
-        let coarse_cells = sol.cells / 2;
-        let coarse = solve_at(ex, layout, settings, coarse_cells, &mut SilentObserver)?;
-        let (fq, cq) = (key_quantities(ex, &sol), key_quantities(ex, &coarse));
-        let ratio = sol.cells as f64 / coarse_cells as f64;
-        let order = ex.scheme.formal_order();
-        let extrapolated = fq.zip(&cq, |f, c| richardson(f, c, ratio, order));
-        Some(GridError { coarse_cells, order, estimated_error: fq.zip(&extrapolated, |f, e| f - e), extrapolated })
-    } else {
-        None
-    };
-    let grid_study = match options.study_levels {
-        Some(levels) => Some(grid_study(ex, layout, settings, settings.cells, levels)?),
-        None => None,
-    };
-    let solved = solved(ex, layout, &sol, &lumped);
-    Ok(assemble(case_name, ex, solved, lumped, grid_error_estimate, grid_study))
-}
-
 /// A network solution made ready for the report.
-fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumped::LumpedResult) -> Solved {
+pub(super) fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution) -> Solved {
     let net = &sol.network;
     let details: Vec<_> = (0..net.cells.len())
         .map(|k| {
@@ -137,14 +83,6 @@ fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumpe
         max_C: lanes.iter().copied().fold(f64::NEG_INFINITY, f64::max),
         lanes: lanes.len(),
     };
-    let summary = NetworkSummary {
-        layout: *layout,
-        cells_total: net.cells.len(),
-        closed_form_effectiveness: lumped.effectiveness, // replaced at the grid's NTU and Cr in assemble
-        closed_form_exact: lumped::closed_form_is_exact(ex.arrangement),
-        hot_outlet: spread(&fields.hot_outlet_lanes_c, q.hot_outlet_c),
-        cold_outlet: spread(&fields.cold_outlet_lanes_c, q.cold_outlet_c),
-    };
     Solved {
         cells: sol.cells,
         iterations: sol.iterations,
@@ -156,6 +94,6 @@ fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution, lumped: &lumpe
         pressure_drop,
         faces_m: Vec::new(),
         faces_c: [Vec::new(), Vec::new()],
-        network: Some((summary, fields)),
+        network: Some((*layout, [spread(&fields.hot_outlet_lanes_c, q.hot_outlet_c), spread(&fields.cold_outlet_lanes_c, q.cold_outlet_c)], fields)),
     }
 }
