@@ -14,7 +14,7 @@
 use super::checks::suggested_cells;
 use super::error::SolveError;
 use super::sparse::{Linear, LuFailure};
-use super::steady::{convergence_target, stopped_flow_temperature, Observer, SteadySettings};
+use super::steady::{convergence_target, duty_estimate, stopped_flow_temperature, Observer, SteadySettings};
 use crate::model::network::NodeKind;
 use crate::model::{CellTemps, Exchanger, Feed, Layout, Network, Scheme, Side};
 use faer::sparse::Pair;
@@ -337,12 +337,7 @@ fn path_depths(net: &Network) -> Vec<usize> {
 /// between its inlet and the closed-form outlet estimate; the wall between the streams.
 fn initial_guess(ex: &Exchanger, sys: &System) -> Vec<f64> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
-    let c_hot = ex.hot.mass_flow_kg_s * (ex.hot.fluid.enthalpy(th) - ex.hot.fluid.enthalpy(tc)) / (th - tc);
-    let c_cold = ex.cold.mass_flow_kg_s * (ex.cold.fluid.enthalpy(th) - ex.cold.fluid.enthalpy(tc)) / (th - tc);
-    let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
-    let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
-    let min_side = if c_hot <= c_cold { Side::Hot } else { Side::Cold };
-    let q = crate::lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side).clamp(0.0, 1.0) * c_min * (th - tc);
+    let (q, c_hot, c_cold) = duty_estimate(ex);
     let (hot_drop, cold_rise) = (q / c_hot, q / c_cold);
     let depth = path_depths(sys.net);
     let mut longest = [1usize; 2];

@@ -104,12 +104,7 @@ fn residuals(ex: &Exchanger, lay: &Grid, dx: f64, x: &[Vector3<f64>], r: &mut [V
 fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
     let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
     let (hf, cf) = (&ex.hot.fluid, &ex.cold.fluid);
-    let span = |f: &dyn crate::fluid::Fluid, m: f64| m * (f.enthalpy(th) - f.enthalpy(tc)) / (th - tc);
-    let (c_hot, c_cold) = (span(&**hf, ex.hot.mass_flow_kg_s), span(&**cf, ex.cold.mass_flow_kg_s));
-    let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
-    let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
-    let min_side = if c_hot <= c_cold { crate::model::Side::Hot } else { crate::model::Side::Cold };
-    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side) * ex.max_duty_w();
+    let (q, _, _) = duty_estimate(ex);
     let (h_hot_in, h_cold_in) = (hf.enthalpy(th), cf.enthalpy(tc));
     let dh_hot = q / ex.hot.mass_flow_kg_s;
     let dh_cold = q / ex.cold.mass_flow_kg_s;
@@ -132,6 +127,20 @@ fn initial_guess(ex: &Exchanger, lay: &Grid) -> Vec<Vector3<f64>> {
             Vector3::new(hot_at((i + 1) as f64 / n), cold_at(cold_path(face)), wall)
         })
         .collect()
+}
+
+/// A first estimate of the duty for initial guesses: the arrangement's closed form with each
+/// stream's mean capacity rate ṁ·Δh/ΔT over the inlet-to-inlet span and the films at the
+/// inlets. Returns (duty W, C_hot W/K, C_cold W/K).
+pub(crate) fn duty_estimate(ex: &Exchanger) -> (f64, f64, f64) {
+    let (th, tc) = (ex.hot.inlet_c, ex.cold.inlet_c);
+    let span = |s: &crate::model::Stream| s.mass_flow_kg_s * (s.fluid.enthalpy(th) - s.fluid.enthalpy(tc)) / (th - tc);
+    let (c_hot, c_cold) = (span(&ex.hot), span(&ex.cold));
+    let (c_min, c_max) = (c_hot.min(c_cold), c_hot.max(c_cold));
+    let ntu = ex.ua_per_length_at(th, tc) * ex.length_m / c_min;
+    let min_side = if c_hot <= c_cold { crate::model::Side::Hot } else { crate::model::Side::Cold };
+    let q = lumped::effectiveness(ex.arrangement, ntu, c_min / c_max, min_side).clamp(0.0, 1.0) * c_min * (th - tc);
+    (q, c_hot, c_cold)
 }
 
 /// The steady state with a stream stopped. With no flow a stream carries no enthalpy, so in
