@@ -31,7 +31,8 @@ fn layouts() -> Vec<Layout> {
 
 /// With constant properties and fixed films the balances are linear in the temperatures: a
 /// Newton step with the assembled (and wall-eliminated) Jacobian lands on the solution from
-/// the initial guess in one iteration, for every layout. A wrong entry would leave a residual.
+/// the initial guess in one iteration, for every layout (Newton's method is exact on a linear
+/// system: a fact of the method). A wrong entry would leave a residual.
 #[test]
 fn one_newton_step_solves_a_linear_network() {
     for layout in layouts() {
@@ -42,8 +43,8 @@ fn one_newton_step_solves_a_linear_network() {
     }
 }
 
-/// Energy closes in every layout (Σ cell heat = hot released = cold gained) and the outlet
-/// mixed means lie within the lanes' spread.
+/// Energy closes in every layout (first law: Σ cell heat = hot released = cold gained) and
+/// the outlet mixed means lie within the lanes' spread (a flow-weighted mean of the lanes).
 #[test]
 fn energy_closes_and_outlets_are_mixed_means() {
     for layout in layouts() {
@@ -113,7 +114,8 @@ fn demo_text(name: &str) -> String {
     std::fs::read_to_string(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases").join(name)).unwrap()
 }
 
-/// A transient on a network settles on the steady rating of the same grid (the same cell
+/// A transient on a network settles on the steady rating of the same grid (the analytical
+/// steady limit of the storage equations, dT/dt → 0, is the steady problem: the same cell
 /// balances with storage added) and closes energy to round-off: the crossflow start-up demo
 /// run long, and a shell-and-tube network (with headers-free stations shared by the passes)
 /// after a hot-inlet step.
