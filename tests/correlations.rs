@@ -355,8 +355,8 @@ fn annulus_equivalent_diameter_follows_kern() {
     // Friction stays on the hydraulic diameter: the pressure drops are equal.
     let (_, fh) = ex_h.cold.film_at(15.0, 30.0, true);
     assert_relative_eq!(
-        ex_e.cold.pressure_drop(1.0, 15.0, 15.0, 3e5, fe.reynolds).unwrap(),
-        ex_h.cold.pressure_drop(1.0, 15.0, 15.0, 3e5, fh.reynolds).unwrap(),
+        ex_e.cold.pressure_drop(1.0, 15.0, 15.0, 3e5, fe.reynolds, None).unwrap(),
+        ex_h.cold.pressure_drop(1.0, 15.0, 15.0, 3e5, fh.reynolds, None).unwrap(),
         max_relative = 1e-12
     );
     // Laminar: the table value on D_h either way.

@@ -209,11 +209,21 @@ impl Stream {
     /// from the stream's upstream face at `t_in` (°C) and pressure `p_in` to its downstream
     /// face at `t_out`: friction f·(Δx/D_h)·G²/(2ρ̄) with the correlation's Darcy factor at
     /// the bulk Reynolds number, plus acceleration G²(1/ρ_out − 1/ρ_in); densities at the
-    /// local pressure (which matters for gases). None where the surface has no friction model.
-    pub fn pressure_drop(&self, dx_m: f64, t_in: f64, t_out: f64, p_in: f64, reynolds: Option<f64>) -> Option<f64> {
+    /// local pressure (which matters for gases). `wall_c`, where known, gives the μ_b/μ_w of
+    /// correlations whose friction has a wall correction. None where the surface has no
+    /// friction model.
+    pub fn pressure_drop(&self, dx_m: f64, t_in: f64, t_out: f64, p_in: f64, reynolds: Option<f64>, wall_c: Option<f64>) -> Option<f64> {
         let area = self.channel.flow_area_m2?;
         let d = self.channel.hydraulic_diameter_m?;
-        let f = self.film.darcy_friction(&self.channel, reynolds?)?;
+        let mu_ratio = wall_c.map_or(1.0, |w| {
+            let mu_w = self.fluid.props(w).viscosity;
+            if mu_w > 0.0 {
+                self.fluid.props(0.5 * (t_in + t_out)).viscosity / mu_w
+            } else {
+                1.0
+            }
+        });
+        let f = self.film.darcy_friction_at(&self.channel, reynolds?, mu_ratio)?;
         let g = self.mass_flow_kg_s / area;
         let rho_in = self.fluid.density_at(t_in, p_in);
         // Friction first at the inlet density, then the outlet density at the reduced pressure.

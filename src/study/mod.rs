@@ -399,7 +399,7 @@ fn pressures(ex: &Exchanger, sol: &SteadySolution, details: &[crate::model::Cell
             let (up, down) = if reversed { (i + 1, i) } else { (i, i + 1) };
             // A tube-bank circuit winds through the bank: its path per cell is longer than Δx.
             let path = sol.dx_m * stream.channel.flow_length_m / ex.length_m;
-            match stream.pressure_drop(path, faces_c[up], faces_c[down], p[up], re(i)) {
+            match stream.pressure_drop(path, faces_c[up], faces_c[down], p[up], re(i), Some(sol.wall_c[i])) {
                 Some(dp) => p[down] = p[up] - dp,
                 None => return Vec::new(),
             }

@@ -48,15 +48,17 @@ pub(super) fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution) -> 
     let pressure_drop = [Side::Hot, Side::Cold].map(|side| {
         let s = side.index();
         let stream = ex.stream(side);
-        let (mut w, mut re) = (0.0, 0.0);
-        for (c, (d, _, _)) in net.cells.iter().zip(&details) {
+        let (mut w, mut re, mut wall) = (0.0, 0.0, 0.0);
+        for (c, (d, _, wall_c)) in net.cells.iter().zip(&details) {
             let film = if side == Side::Hot { &d.hot_film } else { &d.cold_film };
             let share = c.flow_share[s] * c.area_share;
             re += share * film.reynolds?;
+            wall += share * wall_c;
             w += share;
         }
         let outlet = if side == Side::Hot { q.hot_outlet_c } else { q.cold_outlet_c };
-        stream.pressure_drop(stream.channel.flow_length_m, stream.inlet_c, outlet, stream.inlet_pressure_pa, (w > 0.0).then(|| re / w))
+        let mean = |x: f64| (w > 0.0).then(|| x / w);
+        stream.pressure_drop(stream.channel.flow_length_m, stream.inlet_c, outlet, stream.inlet_pressure_pa, mean(re), mean(wall))
     });
     let field = |value: &dyn Fn(usize) -> f64| Field::of_network(net, &(0..net.cells.len()).map(value).collect::<Vec<f64>>());
     let (x_label, y_label) = match layout {

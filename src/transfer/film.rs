@@ -3,6 +3,7 @@
 pub use super::bank::*;
 pub use super::compact::*;
 pub use super::internal::*;
+pub use super::shell::{BellDelaware, Kern, PitchLayout, ShellBundle, ShellRating};
 use super::{Channel, NU_TUBE_LAMINAR_T};
 use crate::fluid::{Fluid, Props};
 use std::fmt::Debug;
@@ -71,6 +72,26 @@ pub trait FilmCorrelation: Send + Sync + Debug {
     fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
         let d = channel.hydraulic_diameter_m?;
         Some(super::friction::darcy_churchill_shaped(reynolds.max(1e-9), channel.roughness_m / d, channel.laminar.f_re))
+    }
+    /// The Darcy factor with the bulk-to-wall viscosity ratio `mu_ratio` = μ_b/μ_w, for
+    /// correlations whose published friction carries a wall correction (shell side, tube
+    /// banks). Default: [`FilmCorrelation::darcy_friction`], no correction.
+    fn darcy_friction_at(&self, channel: &Channel, reynolds: f64, _mu_ratio: f64) -> Option<f64> {
+        self.darcy_friction(channel, reynolds)
+    }
+    /// Whether the friction correlation is inside its published range at Re (counted per
+    /// cell like the film's range). Default: always (Churchill covers all Re).
+    fn friction_in_range(&self, _reynolds: f64) -> bool {
+        true
+    }
+    /// The friction correlation's name and range, where it is not the film's own.
+    fn friction_validity(&self) -> Option<String> {
+        None
+    }
+    /// A shell-side method's breakdown (factors, zones) at one operating point; None for
+    /// every other surface.
+    fn shell_rating(&self, _input: &FilmInput) -> Option<super::shell::ShellRating> {
+        None
     }
 }
 

@@ -10,6 +10,8 @@ pub mod film;
 pub mod fin;
 pub mod friction;
 mod internal;
+pub mod losses;
+pub mod shell;
 mod wall;
 
 pub use film::{
@@ -43,6 +45,8 @@ pub struct Channel {
     /// Fully developed laminar constants of this channel's shape (Nu at uniform wall
     /// temperature and at uniform flux, f·Re), all on the hydraulic diameter.
     pub laminar: LaminarConstants,
+    /// Losses besides core friction (entrance/exit, returns, nozzles), reported separately.
+    pub fittings: losses::Fittings,
 }
 
 /// Fully developed laminar flow in one channel shape, heated on the wall side: Nusselt
@@ -103,6 +107,7 @@ impl Channel {
             volume_per_length_m2: None,
             area_per_length_m,
             laminar: LaminarConstants::TUBE,
+            fittings: losses::Fittings::default(),
         }
     }
 
@@ -118,6 +123,7 @@ impl Channel {
             volume_per_length_m2: Some(flow_area_m2),
             area_per_length_m,
             laminar,
+            fittings: losses::Fittings::default(),
         }
     }
 
