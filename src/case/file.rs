@@ -199,6 +199,38 @@ pub enum GeometryFile {
         /// Parallel tube-side circuits (default: tubes per row).
         tube_circuits: Option<i64>,
     },
+    /// A baffled shell with a bundle of straight tubes (segmental baffles), rated from its
+    /// drawing: with arrangement = "shell_and_tube"; passes, shells and which stream is on
+    /// the shell side come from `[shell_and_tube]`, and `length_m` is the tube length of one
+    /// pass (the shell's baffled length).
+    ShellAndTube {
+        wall_conductivity_W_mK: f64,
+        tube_inner_diameter_m: f64,
+        tube_outer_diameter_m: f64,
+        /// Tubes in one shell, all passes together.
+        tube_count: i64,
+        tube_pitch_m: f64,
+        /// 30, 45, 60 or 90.
+        tube_layout_deg: f64,
+        shell_inner_diameter_m: f64,
+        /// Outer tube limit (default: shell less 12 mm + 0.5 % of it).
+        bundle_diameter_m: Option<f64>,
+        /// Fraction of the shell diameter, 0.15–0.45.
+        baffle_cut_fraction: f64,
+        /// Central baffle spacing.
+        baffle_spacing_m: f64,
+        inlet_baffle_spacing_m: Option<f64>,
+        outlet_baffle_spacing_m: Option<f64>,
+        /// Diametral (default 3.1 mm + 0.4 % of the shell diameter).
+        shell_baffle_clearance_m: Option<f64>,
+        /// Diametral (default 0.8 mm).
+        tube_baffle_clearance_m: Option<f64>,
+        sealing_strip_pairs: Option<i64>,
+        pass_lane_width_m: Option<f64>,
+        /// Nozzle bores (default: nozzle losses not computed).
+        tube_nozzle_diameter_m: Option<f64>,
+        shell_nozzle_diameter_m: Option<f64>,
+    },
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
@@ -209,6 +241,8 @@ pub enum FilmName {
     SiederTate,
     Pitla,
     Zukauskas,
+    BellDelaware,
+    Kern,
     Compact,
     Fixed,
 }
@@ -269,6 +303,8 @@ pub struct CompactFile {
     pub fin_conductivity_W_mK: Option<f64>,
     pub fin_root_radius_m: Option<f64>,
     pub fin_tip_radius_m: Option<f64>,
+    /// Frontal area of the core face, for the entrance and exit losses (default: not computed).
+    pub frontal_area_m2: Option<f64>,
 }
 
 #[derive(Debug, Clone, Deserialize, JsonSchema)]

@@ -4,7 +4,7 @@ use super::file::*;
 use super::problem::*;
 use super::spec::*;
 use crate::text::num;
-use crate::transfer::{Layout, TubeBank};
+use crate::transfer::{Layout, PitchLayout, ShellBundle, TubeBank};
 use std::path::Path;
 
 /// Validate `[geometry]`. Which keys a kind takes, and which it needs, is the type
@@ -163,6 +163,189 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
             };
             Geometry::TubeBank { di, k, tube_side: side(*tube_side), bank, tubes_per_row, tube_length, circuits }
         }
+        GeometryFile::ShellAndTube {
+            wall_conductivity_W_mK,
+            tube_inner_diameter_m,
+            tube_outer_diameter_m,
+            tube_count,
+            tube_pitch_m,
+            tube_layout_deg,
+            shell_inner_diameter_m,
+            bundle_diameter_m,
+            baffle_cut_fraction,
+            baffle_spacing_m,
+            inlet_baffle_spacing_m,
+            outlet_baffle_spacing_m,
+            shell_baffle_clearance_m,
+            tube_baffle_clearance_m,
+            sealing_strip_pairs,
+            pass_lane_width_m,
+            tube_nozzle_diameter_m,
+            shell_nozzle_diameter_m,
+        } => {
+            let k = c.positive("geometry.wall_conductivity_W_mK", *wall_conductivity_W_mK, "W/(m·K)");
+            let (di, d_o) = tubes(c, *tube_inner_diameter_m, *tube_outer_diameter_m);
+            let nt = count(c, "geometry.tube_count", *tube_count);
+            let pt = c.positive("geometry.tube_pitch_m", *tube_pitch_m, "m");
+            let layout = PitchLayout::from_degrees(*tube_layout_deg).unwrap_or_else(|| {
+                c.fail(
+                    "geometry.tube_layout_deg",
+                    format!("{} is not valid: use 30 (triangular), 45 (rotated square), 60 (rotated triangular) or 90 (square)", num(*tube_layout_deg)),
+                );
+                PitchLayout::Triangular30
+            });
+            if pt <= d_o {
+                c.fail("geometry.tube_pitch_m", format!("{} m must exceed the tube outer diameter {} m (tubes cannot overlap)", num(pt), num(d_o)));
+            } else if pt < 1.2 * d_o {
+                c.warn(format!(
+                    "geometry.tube_pitch_m: pitch ratio {:.3} is below 1.2, tighter than common practice (1.25–1.5) and than the Bell–Delaware data",
+                    pt / d_o
+                ));
+            }
+            let ds = c.positive("geometry.shell_inner_diameter_m", *shell_inner_diameter_m, "m");
+            c.looks_like_mm("geometry.shell_inner_diameter_m", ds);
+            // Defaults from Taborek's recommendations (HEDH §3.3, [M]; common practice):
+            // bundle-to-shell diametral clearance 12 mm + 0.5 % D_s (fixed tubesheet or
+            // U-tubes), shell-to-baffle 3.1 mm + 0.4 % D_s, tube-to-baffle hole 0.8 mm.
+            let assumed = |c: &mut Checker, key: &str, v: f64, why: &str| {
+                c.warn(format!("geometry.{key} not given: assumed {} m ({why}; common practice) — give it from the drawing", num((v * 1e5).round() / 1e5)));
+                v
+            };
+            let dotl = match bundle_diameter_m {
+                Some(v) => c.positive("geometry.bundle_diameter_m", *v, "m"),
+                None => assumed(c, "bundle_diameter_m", ds - (0.012 + 0.005 * ds), "shell diameter less 12 mm + 0.5 %"),
+            };
+            if dotl >= ds {
+                c.fail("geometry.bundle_diameter_m", format!("{} m must be smaller than geometry.shell_inner_diameter_m = {} m", num(dotl), num(ds)));
+            }
+            if dotl <= d_o {
+                c.fail("geometry.bundle_diameter_m", format!("{} m must exceed the tube outer diameter {} m", num(dotl), num(d_o)));
+            }
+            let bc = *baffle_cut_fraction;
+            if !(0.05..=0.5).contains(&bc) {
+                c.fail(
+                    "geometry.baffle_cut_fraction",
+                    format!("{} is not valid: give the cut as a fraction of the shell diameter, 0.05–0.5 (commonly 0.2–0.35)", num(bc)),
+                );
+            } else if !(0.15..=0.45).contains(&bc) {
+                c.warn(format!("geometry.baffle_cut_fraction = {}: outside 0.15–0.45, where the Bell–Delaware factors were correlated", num(bc)));
+            }
+            let lbc = c.positive("geometry.baffle_spacing_m", *baffle_spacing_m, "m");
+            if ds > 0.0 && lbc > 0.0 && !(0.2..=1.0).contains(&(lbc / ds)) {
+                c.warn(format!(
+                    "geometry.baffle_spacing_m: spacing {:.2} × the shell diameter is outside 0.2–1.0 of common practice (TEMA limits; Bell–Delaware data)",
+                    lbc / ds
+                ));
+            }
+            let length = f.length_m.unwrap_or(f64::NAN);
+            let ends = [("inlet_baffle_spacing_m", inlet_baffle_spacing_m), ("outlet_baffle_spacing_m", outlet_baffle_spacing_m)]
+                .map(|(k, v)| v.map(|v| c.positive(&format!("geometry.{k}"), v, "m")));
+            // Baffles: the central spacing repeats between the end spacings over the length.
+            let (baffles, ends) = match ends {
+                [None, None] => {
+                    let nb = ((length / lbc).round() as i64 - 1).max(1) as usize;
+                    let end = 0.5 * (length - (nb as f64 - 1.0) * lbc);
+                    (nb, [end, end])
+                }
+                [a, b] => {
+                    let (li, lo) = (a.or(b).unwrap(), b.or(a).unwrap());
+                    let sections = (length - li - lo) / lbc;
+                    if !(sections > -1e-9 && (sections - sections.round()).abs() < 0.01) {
+                        c.fail(
+                            "geometry.baffle_spacing_m",
+                            format!(
+                                "the length {} m less the end spacings {} m and {} m is {} central spacings of {} m: they must make a whole number (length_m = inlet + outlet + (baffles − 1) × spacing)",
+                                num(length), num(li), num(lo), num((sections * 1000.0).round() / 1000.0), num(lbc)
+                            ),
+                        );
+                    }
+                    ((sections.round().max(0.0) as usize) + 1, [li, lo])
+                }
+            };
+            if ends.iter().any(|e| !(*e > 0.0)) && length.is_finite() && lbc > 0.0 {
+                c.fail("geometry.baffle_spacing_m", format!("{} m does not fit the tube length {} m: use a spacing below the length", num(lbc), num(length)));
+            }
+            let clearance = |c: &mut Checker, key: &str, v: Option<f64>, default: f64, why: &str| match v {
+                Some(v) if v >= 0.0 && v.is_finite() => v,
+                Some(v) => {
+                    c.fail(&format!("geometry.{key}"), format!("{} is not valid: give a diametral clearance of 0 or more, in m", num(v)));
+                    0.0
+                }
+                None => assumed(c, key, default, why),
+            };
+            let lsb = clearance(c, "shell_baffle_clearance_m", *shell_baffle_clearance_m, 0.0031 + 0.004 * ds, "3.1 mm + 0.4 % of the shell diameter");
+            let ltb = clearance(c, "tube_baffle_clearance_m", *tube_baffle_clearance_m, 0.0008, "0.8 mm");
+            let lane = match pass_lane_width_m {
+                Some(v) if *v >= 0.0 && v.is_finite() => *v,
+                Some(v) => {
+                    c.fail("geometry.pass_lane_width_m", format!("{} is not valid: give 0 or more, in m", num(*v)));
+                    0.0
+                }
+                None => 0.0,
+            };
+            let strips = match sealing_strip_pairs {
+                None => 0,
+                Some(n) if (0..=100).contains(n) => *n as usize,
+                Some(n) => {
+                    c.fail("geometry.sealing_strip_pairs", format!("{n} is not valid: use a whole number from 0 to 100"));
+                    0
+                }
+            };
+            let nozzles = [("tube_nozzle_diameter_m", tube_nozzle_diameter_m), ("shell_nozzle_diameter_m", shell_nozzle_diameter_m)]
+                .map(|(k, v)| v.map(|v| c.positive(&format!("geometry.{k}"), v, "m")));
+            let (passes, shells, shell_side) = match &f.shell_and_tube {
+                Some(t) if f.arrangement == crate::model::ArrangementKind::ShellAndTube => {
+                    (t.tube_passes.unwrap_or(2).clamp(1, 16) as usize, t.shells_in_series.unwrap_or(1).clamp(1, 16) as usize, side(t.shell_side))
+                }
+                _ => {
+                    c.fail(
+                        "geometry.kind",
+                        "\"shell_and_tube\" needs arrangement = \"shell_and_tube\" with a [shell_and_tube] table (shell_side, tube_passes, shells_in_series)"
+                            .into(),
+                    );
+                    (1, 1, TubeSide::Cold)
+                }
+            };
+            if nt % passes != 0 {
+                c.fail(
+                    "geometry.tube_count",
+                    format!("{nt} tubes do not divide into {passes} tube passes evenly: give a multiple of shell_and_tube.tube_passes"),
+                );
+            }
+            let bundle = ShellBundle {
+                shell_diameter_m: ds,
+                tube_outer_diameter_m: d_o,
+                tube_pitch_m: pt,
+                layout,
+                tubes: nt,
+                bundle_diameter_m: dotl,
+                baffle_cut: bc,
+                central_spacing_m: lbc,
+                end_spacings_m: ends,
+                baffles,
+                shell_baffle_clearance_m: lsb,
+                tube_baffle_clearance_m: ltb,
+                sealing_strip_pairs: strips,
+                pass_lane_width_m: lane,
+                shells,
+            };
+            if c.problems.is_empty() {
+                let a = bundle.areas();
+                // Tubes must fit inside the outer tube limit: each takes a pitch cell of
+                // p_t² (square) or (√3/2) p_t² (triangular).
+                let cell = if matches!(layout, PitchLayout::Triangular30 | PitchLayout::RotatedTriangular60) { 3f64.sqrt() / 2.0 } else { 1.0 } * pt * pt;
+                let room = std::f64::consts::PI / 4.0 * (dotl - d_o).powi(2) / cell;
+                if nt as f64 > 1.05 * room {
+                    c.fail("geometry.tube_count", format!("{nt} tubes at pitch {} m need more room than the bundle diameter {} m gives (about {} fit): check the count, pitch or bundle diameter", num(pt), num(dotl), room.floor()));
+                } else if !(a.crossflow_area_m2 > 0.0 && a.window_area_m2 > 0.0 && a.rows_crossed > 0.0) {
+                    c.fail(
+                        "geometry.baffle_cut_fraction",
+                        format!("{} leaves no crossflow or no window flow area in this bundle: check the cut, the bundle diameter and the tube count", num(bc)),
+                    );
+                }
+            }
+            Geometry::ShellAndTube { di, k, tube_side: shell_side.other(), bundle, passes, nozzles }
+        }
     }
 }
 
@@ -208,7 +391,9 @@ pub(super) fn hydraulic_diameter(geometry: &Geometry, side: &str, film: &FilmSpe
     }
     let in_tubes = geometry.tube_side().map(|t| t.as_str() == side);
     match (geometry, in_tubes) {
-        (Geometry::DoublePipe { di, .. }, Some(true)) | (Geometry::TubeBank { di, .. }, Some(true)) => Some(*di),
+        (Geometry::DoublePipe { di, .. }, Some(true)) | (Geometry::TubeBank { di, .. }, Some(true)) | (Geometry::ShellAndTube { di, .. }, Some(true)) => {
+            Some(*di)
+        }
         (Geometry::DoublePipe { d_o, ds, .. }, Some(false)) => Some(ds - d_o),
         (Geometry::PlaneWall { hot, cold, .. }, _) => {
             if side == "hot" {

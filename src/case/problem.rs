@@ -153,6 +153,10 @@ impl Checker {
         };
         self.problems.push(Problem::new(key, None, kind));
     }
+    /// A legal but suspicious input (printed and written to summary.json).
+    pub(super) fn warn(&mut self, message: String) {
+        self.warnings.push(message);
+    }
     /// A finite value strictly above zero.
     pub(super) fn positive(&mut self, key: &str, v: f64, unit: &str) -> f64 {
         if !(v.is_finite() && v > 0.0) {

@@ -5,7 +5,7 @@ use crate::model::Arrangement;
 pub use crate::model::Side;
 use crate::solve::transient::{Inputs, Signal, TransientSettings};
 use crate::solve::SteadySettings;
-use crate::transfer::{CompactSurface, Fin, InternalFlow, TubeBank};
+use crate::transfer::{CompactSurface, Fin, InternalFlow, ShellBundle, TubeBank};
 use std::f64::consts::PI;
 
 /// Which stream flows in the tubes (of a double pipe or a tube bank).
@@ -61,13 +61,28 @@ pub enum Geometry {
         /// Parallel tube-side circuits.
         circuits: usize,
     },
+    /// A baffled shell-and-tube bundle rated from its geometry.
+    ShellAndTube {
+        /// Tube inner diameter, m.
+        di: f64,
+        /// Wall conductivity, W/(m·K).
+        k: f64,
+        /// Stream in the tubes.
+        tube_side: TubeSide,
+        /// Shell, bundle and baffles (shells in series included).
+        bundle: ShellBundle,
+        /// Tube passes per shell.
+        passes: usize,
+        /// Tube-side and shell-side nozzle bores, m.
+        nozzles: [Option<f64>; 2],
+    },
 }
 
 impl Geometry {
     /// Which stream the tubes carry, for geometries with tubes.
     pub fn tube_side(&self) -> Option<TubeSide> {
         match self {
-            Geometry::DoublePipe { tube_side, .. } | Geometry::TubeBank { tube_side, .. } => Some(*tube_side),
+            Geometry::DoublePipe { tube_side, .. } | Geometry::TubeBank { tube_side, .. } | Geometry::ShellAndTube { tube_side, .. } => Some(*tube_side),
             Geometry::PlaneWall { .. } => None,
         }
     }
@@ -80,6 +95,11 @@ pub enum FilmSpec {
     Internal(InternalFlow),
     /// Zukauskas, outside of a tube bank.
     Zukauskas,
+    /// Shell side of a shell-and-tube geometry: Bell–Delaware (true) or Kern (false).
+    Shell {
+        /// Bell–Delaware rather than Kern.
+        bell_delaware: bool,
+    },
     /// Compact surface from j/f data, with its own passage geometry.
     Compact {
         /// The surface data and fins.
@@ -90,6 +110,8 @@ pub enum FilmSpec {
         free_flow_area_m2: f64,
         /// Total surface per metre of length, m²/m.
         area_per_length_m: f64,
+        /// σ = A_ff/A_fr, if the frontal area was given (entrance and exit losses).
+        sigma: Option<f64>,
     },
     /// Fixed value, W/(m²·K).
     Fixed(f64),
@@ -112,6 +134,16 @@ pub struct StreamSpec {
     pub film: FilmSpec,
     /// Absolute roughness, m.
     pub roughness_m: f64,
+}
+
+impl Case {
+    /// The validated stream on `side`.
+    pub fn stream(&self, side: Side) -> &StreamSpec {
+        match side {
+            Side::Hot => &self.hot,
+            Side::Cold => &self.cold,
+        }
+    }
 }
 
 /// A valid case: everything needed to build and solve an exchanger.

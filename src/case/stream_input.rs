@@ -35,6 +35,11 @@ pub(super) fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &
             "applies to internal-flow films (gnielinski, dittus_boelter, sieder_tate, pitla) only: remove it".into(),
         );
     }
+    if let (Geometry::ShellAndTube { .. }, Some(false)) = (geometry, is_tube_side) {
+        if internal || matches!(s.film, FilmName::Zukauskas | FilmName::Compact) {
+            c.fail(&key("film"), "the shell side of a shell-and-tube geometry needs film = \"bell_delaware\", \"kern\" or \"fixed\"".into());
+        }
+    }
     if let (Geometry::TubeBank { .. }, Some(false)) = (geometry, is_tube_side) {
         if internal {
             c.fail(
@@ -60,6 +65,15 @@ pub(super) fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &
                 );
             }
             FilmSpec::Zukauskas
+        }
+        FilmName::BellDelaware | FilmName::Kern => {
+            if !matches!((geometry, is_tube_side), (Geometry::ShellAndTube { .. }, Some(false))) {
+                c.fail(
+                    &key("film"),
+                    format!("\"{}\" is for the shell side of a shell-and-tube geometry: use geometry kind = \"shell_and_tube\" with this stream as shell_and_tube.shell_side", if s.film == FilmName::Kern { "kern" } else { "bell_delaware" }),
+                );
+            }
+            FilmSpec::Shell { bell_delaware: s.film == FilmName::BellDelaware }
         }
         FilmName::Compact => match &s.compact {
             None => {
@@ -107,7 +121,18 @@ pub(super) fn film_spec(c: &mut Checker, side: &str, s: &StreamFile, base_dir: &
                         (Some(fin), fraction)
                     }
                 };
+                let sigma = cf.frontal_area_m2.map(|a_fr| {
+                    let a_fr = c.positive(&ck("frontal_area_m2"), a_fr, "m²");
+                    if a_fr < a_ff {
+                        c.fail(
+                            &ck("frontal_area_m2"),
+                            format!("{} m² is smaller than free_flow_area_m2 = {} m²: the free-flow area is part of the frontal area", num(a_fr), num(a_ff)),
+                        );
+                    }
+                    a_ff / a_fr
+                });
                 FilmSpec::Compact {
+                    sigma,
                     surface: CompactSurface { data, fin, fin_area_fraction: fraction },
                     hydraulic_diameter_m: dh,
                     free_flow_area_m2: a_ff,

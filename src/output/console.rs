@@ -93,6 +93,50 @@ pub fn steady(r: &SteadyReport) -> String {
     let dp = |v: Option<f64>| v.map(|p| format!("{:.4} kPa", p * 1e-3)).unwrap_or_else(|| "not computed".into());
     let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop hot", dp(r.hot_pressure_drop_Pa), "");
     let _ = writeln!(out, "{:<22}{:>16}{:>16}", "pressure drop cold", dp(r.cold_pressure_drop_Pa), "");
+    for (name, losses, total) in
+        [("hot", &r.hot_pressure_losses, r.hot_pressure_drop_total_Pa), ("cold", &r.cold_pressure_losses, r.cold_pressure_drop_total_Pa)]
+    {
+        let Some(l) = losses else { continue };
+        let parts: Vec<String> = [("entrance", l.entrance_Pa), ("exit", l.exit_Pa), ("returns", l.returns_Pa), ("nozzles", l.nozzles_Pa)]
+            .iter()
+            .filter_map(|(label, v)| v.map(|p| format!("{label} {:.4} kPa", p * 1e-3)))
+            .collect();
+        let _ = writeln!(out, "  {name} besides friction: {}; total {}", parts.join(", "), dp(total));
+    }
+    if let Some(sh) = &r.shell_side {
+        let g = &sh.rating;
+        let _ = writeln!(
+            out,
+            "\nshell side ({}, {}): Re {}, h {} W/(m²·K), Δp {:.4} kPa",
+            sh.stream,
+            g.method,
+            f(g.reynolds, 0),
+            f(g.h_W_m2K, 1),
+            g.pressure_drop_Pa * 1e-3
+        );
+        if let (Some(j), Some(z)) = (&g.factors, &g.zones) {
+            let _ = writeln!(
+                out,
+                "  J_c {} · J_l {} · J_b {} · J_s {} · J_r {} = {} (h ideal {} W/(m²·K))",
+                f(j.J_c, 3),
+                f(j.J_l, 3),
+                f(j.J_b, 3),
+                f(j.J_s, 3),
+                f(j.J_r, 3),
+                f(j.J_total, 3),
+                f(g.ideal_h_W_m2K.unwrap_or(0.0), 1)
+            );
+            let _ = writeln!(
+                out,
+                "  R_l {} · R_b {}; per shell: crossflow {:.4} kPa, windows {:.4} kPa, end zones {:.4} kPa",
+                f(j.R_l, 3),
+                f(j.R_b, 3),
+                z.crossflow_Pa * 1e-3,
+                z.windows_Pa * 1e-3,
+                z.end_zones_Pa * 1e-3
+            );
+        }
+    }
     if let Some(n) = &r.network {
         let exact = if n.closed_form_exact { "exact" } else { "approximate" };
         let _ = writeln!(out, "{:<22}{:>16}   (closed form at the grid's NTU and Cr, {exact})", "closed-form ε", f(n.closed_form_effectiveness, 5));

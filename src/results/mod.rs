@@ -280,6 +280,16 @@ pub struct NetworkSummary {
     pub cold_outlet: OutletSpread,
 }
 
+/// The shell side's rating breakdown and which stream it is.
+#[derive(Debug, Clone, Serialize)]
+pub struct ShellSide {
+    /// "hot" or "cold".
+    pub stream: &'static str,
+    /// The breakdown.
+    #[serde(flatten)]
+    pub rating: crate::transfer::shell::ShellRating,
+}
+
 /// Everything a steady rating produces.
 #[derive(Debug, Clone, Serialize)]
 pub struct SteadyReport {
@@ -343,6 +353,26 @@ pub struct SteadyReport {
     pub hot_pressure_drop_Pa: Option<f64>,
     /// Cold pressure drop, Pa.
     pub cold_pressure_drop_Pa: Option<f64>,
+    /// Hot cells whose Reynolds number is outside the friction correlation's range (where
+    /// it has its own, e.g. Gaddis–Gnielinski on a tube bank).
+    pub hot_cells_outside_friction_range: usize,
+    /// Cold cells outside their friction correlation's range.
+    pub cold_cells_outside_friction_range: usize,
+    /// Hot losses besides core friction (entrance/exit, returns, nozzles), Pa; None where the
+    /// passage has none.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub hot_pressure_losses: Option<crate::transfer::losses::LossBreakdown>,
+    /// Cold losses besides core friction.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cold_pressure_losses: Option<crate::transfer::losses::LossBreakdown>,
+    /// Hot drop with those losses: `hot_pressure_drop_Pa` + the losses.
+    pub hot_pressure_drop_total_Pa: Option<f64>,
+    /// Cold drop with the losses.
+    pub cold_pressure_drop_total_Pa: Option<f64>,
+    /// Shell side rated from geometry: method, Re, every correction factor, the zone
+    /// pressure drops and the method's stated uncertainty (at the mean shell temperature).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub shell_side: Option<ShellSide>,
     /// The lumped hand result.
     pub lumped: LumpedResult,
     /// Grid versus lumped.

@@ -283,6 +283,56 @@ pub(crate) fn assemble(
         }
     }
     let [hot_dp, cold_dp] = sol.pressure_drop;
+    let outlet_of = |side: crate::model::Side| if side == crate::model::Side::Hot { q.hot_outlet_c } else { q.cold_outlet_c };
+    let film_of = |d: &crate::model::CellDetail, side: crate::model::Side| if side == crate::model::Side::Hot { d.hot_film } else { d.cold_film };
+    let cells = sol.details.len().max(1) as f64;
+    let mean_wall = sol.details.iter().map(|d| d.2).sum::<f64>() / cells;
+    let mean_re = |side| {
+        let v: Vec<f64> = sol.details.iter().filter_map(|d| film_of(&d.0, side).reynolds).collect();
+        (!v.is_empty()).then(|| v.iter().sum::<f64>() / v.len() as f64)
+    };
+    let outside_friction = crate::model::Side::BOTH.map(|side| {
+        let stream = ex.stream(side);
+        sol.details.iter().filter(|d| film_of(&d.0, side).reynolds.is_some_and(|re| !stream.film.friction_in_range(re))).count()
+    });
+    let [hot_losses, cold_losses] = crate::model::Side::BOTH.map(|side| {
+        let s = ex.stream(side);
+        let (Some(area), true) = (s.channel.flow_area_m2, s.channel.fittings.any()) else { return None };
+        let dp = if side == crate::model::Side::Hot { hot_dp } else { cold_dp }.unwrap_or(0.0);
+        let rho_in = s.fluid.density_at(s.inlet_c, s.inlet_pressure_pa);
+        let rho_out = s.fluid.density_at(outlet_of(side), s.inlet_pressure_pa - dp);
+        Some(s.channel.fittings.losses(s.mass_flow_kg_s / area, s.mass_flow_kg_s, rho_in, rho_out, mean_re(side).unwrap_or(0.0)))
+    });
+    let total = |dp: Option<f64>, l: &Option<crate::transfer::losses::LossBreakdown>| dp.map(|d| d + l.as_ref().map_or(0.0, |l| l.total()));
+    let (hot_total, cold_total) = (total(hot_dp, &hot_losses), total(cold_dp, &cold_losses));
+    let shell_side = crate::model::Side::BOTH.into_iter().find_map(|side| {
+        let s = ex.stream(side);
+        let bulk = 0.5 * (s.inlet_c + outlet_of(side));
+        let props = s.fluid.props(bulk);
+        let input = crate::transfer::FilmInput {
+            channel: &s.channel,
+            mass_flow_kg_s: s.mass_flow_kg_s,
+            props: &props,
+            bulk_c: bulk,
+            wall_c: mean_wall,
+            fluid: &*s.fluid,
+            heated: side == crate::model::Side::Cold,
+        };
+        s.film.shell_rating(&input).map(|rating| ShellSide { stream: side.as_str(), rating })
+    });
+    if let Some(sh) = &shell_side {
+        warnings.push(format!("{} (shell side): {}", sh.stream, sh.rating.stated_uncertainty));
+    }
+    for (k, side) in crate::model::Side::BOTH.into_iter().enumerate() {
+        if outside_friction[k] > 0 {
+            warnings.push(format!(
+                "{side} stream: {} of {} cells are outside the friction correlation's range ({}); the pressure drop there is extrapolated",
+                outside_friction[k],
+                sol.details.len(),
+                ex.stream(side).film.friction_validity().unwrap_or_default()
+            ));
+        }
+    }
     for (name, stream, dp) in [("hot", &ex.hot, hot_dp), ("cold", &ex.cold, cold_dp)] {
         match dp {
             None => warnings.push(format!("{name} stream: pressure drop not computed (no friction model for the {} surface)", stream.film.name())),
@@ -366,6 +416,13 @@ pub(crate) fn assemble(
         cold_inlet_pressure_Pa: ex.cold.inlet_pressure_pa,
         hot_pressure_drop_Pa: hot_dp,
         cold_pressure_drop_Pa: cold_dp,
+        hot_cells_outside_friction_range: outside_friction[0],
+        cold_cells_outside_friction_range: outside_friction[1],
+        hot_pressure_losses: hot_losses,
+        cold_pressure_losses: cold_losses,
+        hot_pressure_drop_total_Pa: hot_total,
+        cold_pressure_drop_total_Pa: cold_total,
+        shell_side,
         lumped,
         grid_vs_lumped,
         grid_error_estimate,

@@ -3,7 +3,6 @@
 pub use super::bank::*;
 pub use super::compact::*;
 pub use super::internal::*;
-pub use super::shell::{BellDelaware, Kern, PitchLayout, ShellBundle, ShellRating};
 use super::{Channel, NU_TUBE_LAMINAR_T};
 use crate::fluid::{Fluid, Props};
 use std::fmt::Debug;

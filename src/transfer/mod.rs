@@ -19,6 +19,7 @@ pub use film::{
     Transition, TubeBank, Turbulent, WallCorrection, Zukauskas,
 };
 pub use fin::Fin;
+pub use shell::{BellDelaware, Kern, PitchLayout, ShellBundle};
 pub use wall::Wall;
 
 /// The passage one stream flows through, as the correlations need it.
