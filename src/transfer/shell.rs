@@ -228,7 +228,10 @@ const BANK_30: IdealBank = IdealBank {
     b34: (7.00, 0.500),
 };
 const BANK_45: IdealBank = IdealBank {
-    a: [(0.370, -0.396), (0.370, -0.396), (0.730, -0.500), (0.498, -0.656), (1.550, -0.667)],
+    // a₁ = 1.498 for 10 < Re < 100: remembered as 0.498, which breaks the curve by a factor
+    // of 3 at both ends of its range; 1.498 meets its neighbours within 1 % (the published
+    // curves are continuous), so the leading digit was lost in memory.
+    a: [(0.370, -0.396), (0.370, -0.396), (0.730, -0.500), (1.498, -0.656), (1.550, -0.667)],
     a34: (1.930, 0.500),
     b: [(0.303, -0.126), (0.333, -0.136), (3.500, -0.476), (26.200, -0.913), (32.000, -1.000)],
     b34: (6.59, 0.520),
@@ -305,6 +308,51 @@ pub fn ideal_bank_raw(layout: PitchLayout, re: f64, pitch_ratio: f64) -> (f64, f
 /// The same with the row switches blended (what the film coefficient uses).
 pub fn ideal_bank(layout: PitchLayout, re: f64, pitch_ratio: f64) -> (f64, f64) {
     IdealBank::for_layout(layout).smooth(re, pitch_ratio)
+}
+
+/// Baffle cut and spacing J_c = 0.55 + 0.72 F_c.
+pub fn baffle_cut_factor(crossflow_tube_fraction: f64) -> f64 {
+    0.55 + 0.72 * crossflow_tube_fraction
+}
+
+/// Baffle leakage J_l = 0.44(1 − r_s) + [1 − 0.44(1 − r_s)] exp(−2.2 r_lm).
+pub fn leakage_factor(r_s: f64, r_lm: f64) -> f64 {
+    0.44 * (1.0 - r_s) + (1.0 - 0.44 * (1.0 - r_s)) * (-2.2 * r_lm).exp()
+}
+
+/// Leakage on pressure drop R_l = exp[−1.33(1 + r_s) r_lm^p], p = −0.15(1 + r_s) + 0.8.
+pub fn leakage_pressure_factor(r_s: f64, r_lm: f64) -> f64 {
+    (-1.33 * (1.0 + r_s) * r_lm.powf(-0.15 * (1.0 + r_s) + 0.8)).exp()
+}
+
+/// Bundle bypass exp[−C F_sbp (1 − (2 r_ss)^⅓)], 1 for r_ss ≥ ½: J_b with C = 1.35 laminar,
+/// 1.25 turbulent; R_b with C = 4.5 laminar, 3.7 turbulent.
+pub fn bypass_factor(bypass_fraction: f64, r_ss: f64, c: f64) -> f64 {
+    if r_ss >= 0.5 {
+        1.0
+    } else {
+        (-c * bypass_fraction * (1.0 - (2.0 * r_ss).cbrt())).exp()
+    }
+}
+
+/// Unequal end spacing J_s = [(N_b − 1) + L_i*^(1−n) + L_o*^(1−n)]/[(N_b − 1) + L_i* + L_o*],
+/// L* = end spacing / central spacing; n = 0.6 turbulent, ⅓ laminar.
+pub fn end_spacing_factor(baffles: f64, ends: [f64; 2], n: f64) -> f64 {
+    ((baffles - 1.0) + ends[0].powf(1.0 - n) + ends[1].powf(1.0 - n)) / ((baffles - 1.0) + ends[0] + ends[1])
+}
+
+/// Adverse laminar gradient J_r: (10/N_c)^0.18 for Re ≤ 20, linear in Re to 1 at Re = 100,
+/// 1 above; not below 0.4. N_c = (N_tcc + N_tcw)(N_b + 1), the rows crossed in the shell.
+pub fn laminar_gradient_factor(re: f64, rows_crossed_in_shell: f64) -> f64 {
+    let j_rl = (10.0 / rows_crossed_in_shell).powf(0.18);
+    if re <= 20.0 {
+        j_rl
+    } else if re < 100.0 {
+        j_rl + (20.0 - re) / 80.0 * (j_rl - 1.0)
+    } else {
+        1.0
+    }
+    .max(0.4)
 }
 
 /// Taborek's correction factors and pressure-drop factors at one Reynolds number.
@@ -403,27 +451,14 @@ impl BellDelaware {
         let b = &self.bundle;
         let w = turbulent_weight(re);
         let mix = |lam: f64, turb: f64| lam + w * (turb - lam);
-        let j_c = 0.55 + 0.72 * a.crossflow_tube_fraction;
-        let j_l = 0.44 * (1.0 - a.r_s) + (1.0 - 0.44 * (1.0 - a.r_s)) * (-2.2 * a.r_lm).exp();
-        let strips = if a.r_ss >= 0.5 { 0.0 } else { 1.0 - (2.0 * a.r_ss).cbrt() };
-        let j_b = mix((-1.35 * a.bypass_fraction * strips).exp(), (-1.25 * a.bypass_fraction * strips).exp());
+        let j_c = baffle_cut_factor(a.crossflow_tube_fraction);
+        let j_l = leakage_factor(a.r_s, a.r_lm);
+        let j_b = mix(bypass_factor(a.bypass_fraction, a.r_ss, 1.35), bypass_factor(a.bypass_fraction, a.r_ss, 1.25));
         let nb = b.baffles as f64;
         let ends = b.end_spacings_m.map(|l| l / b.central_spacing_m);
-        let js = |n: f64| ((nb - 1.0) + ends[0].powf(1.0 - n) + ends[1].powf(1.0 - n)) / ((nb - 1.0) + ends[0] + ends[1]);
-        let j_s = mix(js(1.0 / 3.0), js(0.6));
-        let nc = (a.rows_crossed + a.window_rows) * (nb + 1.0);
-        let j_rl = (10.0 / nc).powf(0.18);
-        let j_r = if re <= 20.0 {
-            j_rl
-        } else if re < 100.0 {
-            j_rl + (20.0 - re) / 80.0 * (j_rl - 1.0)
-        } else {
-            1.0
-        }
-        .max(0.4);
-        let p = -0.15 * (1.0 + a.r_s) + 0.8;
-        let r_l = (-1.33 * (1.0 + a.r_s) * a.r_lm.powf(p)).exp();
-        let r_b = mix((-4.5 * a.bypass_fraction * strips).exp(), (-3.7 * a.bypass_fraction * strips).exp());
+        let j_s = mix(end_spacing_factor(nb, ends, 1.0 / 3.0), end_spacing_factor(nb, ends, 0.6));
+        let j_r = laminar_gradient_factor(re, (a.rows_crossed + a.window_rows) * (nb + 1.0));
+        let (r_l, r_b) = (leakage_pressure_factor(a.r_s, a.r_lm), mix(bypass_factor(a.bypass_fraction, a.r_ss, 4.5), bypass_factor(a.bypass_fraction, a.r_ss, 3.7)));
         let r_s = ends.map(|e| mix((1.0 / e).powf(2.0 - 1.0), (1.0 / e).powf(2.0 - 0.2)));
         BellFactors { J_c: j_c, J_l: j_l, J_b: j_b, J_s: j_s, J_r: j_r, J_total: j_c * j_l * j_b * j_s * j_r, R_l: r_l, R_b: r_b, R_s: r_s }
     }
@@ -684,6 +719,20 @@ mod tests {
             sealing_strip_pairs: 2,
             pass_lane_width_m: 0.0,
             shells: 1,
+        }
+    }
+
+    /// Neighbouring rows of the table meet within 5 % at each switch (the published curves are
+    /// continuous; a transcription slip shows as a jump), and the blend makes them meet
+    /// exactly (Newton needs it).
+    #[test]
+    fn table_rows_meet_at_switches() {
+        for bank in [&BANK_30, &BANK_45, &BANK_90] {
+            for (k, &s) in BANK_SWITCHES.iter().enumerate() {
+                let (jh, fh) = bank.at_row(k, s, 1.25);
+                let (jl, fl) = bank.at_row(k + 1, s, 1.25);
+                assert!((jl / jh - 1.0).abs() < 0.055 && (fl / fh - 1.0).abs() < 0.055, "Re {s}: j {jl}/{jh}, f {fl}/{fh}");
+            }
         }
     }
 
