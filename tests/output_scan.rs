@@ -25,7 +25,7 @@ fn scan_csv(path: &Path) {
 }
 
 /// Keys whose value may be null ("not computed" or "does not apply"), by name.
-const MAY_BE_NULL: [&str; 14] = [
+const MAY_BE_NULL: [&str; 16] = [
     "stop",
     "shell_with",
     "shell_outer_face",
@@ -33,6 +33,8 @@ const MAY_BE_NULL: [&str; 14] = [
     "difference_from_steady_K",
     "hot_pressure_drop_Pa",
     "cold_pressure_drop_Pa",
+    "hot_pressure_drop_total_Pa",
+    "cold_pressure_drop_total_Pa",
     "lmtd_K",
     "lmtd_k",
     "lmtd_duty_W",

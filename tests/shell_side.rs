@@ -65,7 +65,8 @@ fn bank(layout: Layout, a: f64, b: f64, rows: usize) -> TubeBank {
 #[test]
 fn tube_bank_friction_on_incropera_example_7_7() {
     let d = 0.0164;
-    let b = TubeBank { outer_diameter_m: d, transverse_pitch_m: 0.0313, longitudinal_pitch_m: 0.0343, layout: Layout::Staggered, rows: 7, frontal_area_m2: 1.0 };
+    let b =
+        TubeBank { outer_diameter_m: d, transverse_pitch_m: 0.0313, longitudinal_pitch_m: 0.0343, layout: Layout::Staggered, rows: 7, frontal_area_m2: 1.0 };
     let dp = b.drag_per_row(13943.0, 1.0) * 7.0 * 1.217 * 12.6 * 12.6 / 2.0;
     assert!((dp / 235.2 - 1.0).abs() < 0.03, "{dp} Pa");
     assert!(b.friction_in_range(13943.0));
@@ -139,7 +140,8 @@ fn bundle(layout: PitchLayout) -> ShellBundle {
 #[test]
 fn kern_equivalent_diameters() {
     let inch = 0.0254;
-    let de = |d: f64, p: f64, layout| ShellBundle { tube_outer_diameter_m: d * inch, tube_pitch_m: p * inch, ..bundle(layout) }.kern_equivalent_diameter_m() / inch;
+    let de =
+        |d: f64, p: f64, layout| ShellBundle { tube_outer_diameter_m: d * inch, tube_pitch_m: p * inch, ..bundle(layout) }.kern_equivalent_diameter_m() / inch;
     assert!((de(1.0, 1.25, PitchLayout::Square90) / 0.99 - 1.0).abs() < 0.01);
     assert!((de(0.75, 1.0, PitchLayout::Triangular30) / 0.73 - 1.0).abs() < 0.015);
 }
@@ -191,7 +193,8 @@ fn bell_delaware_h_is_continuous_and_monotone() {
     // 45°: two diagonal gaps of p_t − d per transverse pitch √2 p_t (Taborek's 0.707 p_t).
     let b = bundle(PitchLayout::RotatedSquare45);
     let dctl = b.bundle_diameter_m - b.tube_outer_diameter_m;
-    let expected = b.central_spacing_m * (b.shell_diameter_m - b.bundle_diameter_m + dctl / (0.7071067811865476 * b.tube_pitch_m) * (b.tube_pitch_m - b.tube_outer_diameter_m));
+    let expected = b.central_spacing_m
+        * (b.shell_diameter_m - b.bundle_diameter_m + dctl / (std::f64::consts::FRAC_1_SQRT_2 * b.tube_pitch_m) * (b.tube_pitch_m - b.tube_outer_diameter_m));
     assert!((a45.crossflow_area_m2 / expected - 1.0).abs() < 1e-12);
     assert!(a30.crossflow_area_m2 > 0.0 && a30.window_area_m2 > 0.0);
 }

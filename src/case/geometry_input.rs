@@ -262,7 +262,7 @@ pub(super) fn geometry(c: &mut Checker, f: &CaseFile) -> Geometry {
                     ((sections.round().max(0.0) as usize) + 1, [li, lo])
                 }
             };
-            if ends.iter().any(|e| !(*e > 0.0)) && length.is_finite() && lbc > 0.0 {
+            if ends.iter().any(|e| e.is_nan() || *e <= 0.0) && length.is_finite() && lbc > 0.0 {
                 c.fail("geometry.baffle_spacing_m", format!("{} m does not fit the tube length {} m: use a spacing below the length", num(lbc), num(length)));
             }
             let clearance = |c: &mut Checker, key: &str, v: Option<f64>, default: f64, why: &str| match v {

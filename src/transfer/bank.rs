@@ -219,14 +219,17 @@ impl TubeBank {
     /// Gaddis–Gnielinski drag coefficient per row ξ, Δp = ξ N_L ρ V_max²/2 with Re = V_max D/ν
     /// and `mu_ratio` = μ_b/μ_w (E. S. Gaddis, V. Gnielinski, Chem. Eng. Process. 19 (1985)
     /// 39–49; VDI Heat Atlas, 2nd ed. 2010, ch. L1 \[M\]). With a = S_T/D, b = S_L/D:
-    /// ξ = ξ_lam f_z,l + (ξ_turb f_z,t + f_n)(1 − exp(−(Re + 1000)/2000));
-    /// in line ξ_lam = 280π[(√b − 0.6)² + 0.75]/((4ab − π) a^1.6 Re),
-    /// ξ_turb = f_t/Re^(0.1 b/a), f_t = [0.22 + 1.2(1 − 0.94/b)^0.6/(a − 0.85)^1.3]·10^(0.47(b/a − 1.5))
-    /// + 0.03(a − 1)(b − 1); staggered ξ_lam the same with c^1.6 for a^1.6 (c = a if
-    /// b ≥ ½√(2a + 1), else the diagonal pitch ratio √((a/2)² + b²)), ξ_turb = [2.5 + 1.2/(a −
-    /// 0.85)^1.08 + 0.4(b/a − 1)³ − 0.01(a/b − 1)³]/Re^0.25; rows N_L < 10 add
-    /// f_n = (1/a²)(1/N_L − 1/10) in line and staggered with c = a, else (2(c − 1)/(a(a − 1)))²
-    /// (1/N_L − 1/10); f_z,t = (μ_w/μ)^0.14, f_z,l = (μ_w/μ)^(0.57/((4ab/π − 1)Re)^0.25).
+    ///
+    /// ```text
+    /// ξ = ξ_lam f_z,l + (ξ_turb f_z,t + f_n) (1 − exp(−(Re + 1000)/2000))
+    /// in line:   ξ_lam = 280π[(√b − 0.6)² + 0.75] / ((4ab − π) a^1.6 Re)
+    ///            ξ_turb = f_t / Re^(0.1 b/a),
+    ///            f_t = [0.22 + 1.2 (1 − 0.94/b)^0.6 / (a − 0.85)^1.3] 10^(0.47(b/a − 1.5)) + 0.03(a − 1)(b − 1)
+    /// staggered: ξ_lam as in line with c^1.6 for a^1.6, c = a if b ≥ ½√(2a + 1), else √((a/2)² + b²)
+    ///            ξ_turb = [2.5 + 1.2/(a − 0.85)^1.08 + 0.4(b/a − 1)³ − 0.01(a/b − 1)³] / Re^0.25
+    /// rows N_L < 10: f_n = (1/a²)(1/N_L − 1/10); staggered with c ≠ a: (2(c − 1)/(a(a − 1)))² (1/N_L − 1/10)
+    /// f_z,t = (μ_w/μ)^0.14,  f_z,l = (μ_w/μ)^(0.57/((4ab/π − 1) Re)^0.25)
+    /// ```
     pub fn drag_per_row(&self, re: f64, mu_ratio: f64) -> f64 {
         let re = re.max(1e-9);
         let d = self.outer_diameter_m;

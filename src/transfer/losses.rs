@@ -77,18 +77,25 @@ pub struct Fittings {
 #[allow(non_snake_case)]
 pub struct LossBreakdown {
     /// Core entrance (K_c + 1 − σ²) G²/(2ρ_in).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub entrance_Pa: Option<f64>,
     /// Core exit −(1 − σ² − K_e) G²/(2ρ_out) (a recovery when negative).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub exit_Pa: Option<f64>,
     /// K_c and K_e used.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub K_c: Option<f64>,
     /// K_e.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub K_e: Option<f64>,
     /// Returns (pass returns or return bends).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub returns_Pa: Option<f64>,
     /// What the returns are and their coefficient.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub returns_basis: Option<String>,
     /// Inlet and outlet nozzles.
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub nozzles_Pa: Option<f64>,
 }
 

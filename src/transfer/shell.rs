@@ -458,7 +458,8 @@ impl BellDelaware {
         let ends = b.end_spacings_m.map(|l| l / b.central_spacing_m);
         let j_s = mix(end_spacing_factor(nb, ends, 1.0 / 3.0), end_spacing_factor(nb, ends, 0.6));
         let j_r = laminar_gradient_factor(re, (a.rows_crossed + a.window_rows) * (nb + 1.0));
-        let (r_l, r_b) = (leakage_pressure_factor(a.r_s, a.r_lm), mix(bypass_factor(a.bypass_fraction, a.r_ss, 4.5), bypass_factor(a.bypass_fraction, a.r_ss, 3.7)));
+        let (r_l, r_b) =
+            (leakage_pressure_factor(a.r_s, a.r_lm), mix(bypass_factor(a.bypass_fraction, a.r_ss, 4.5), bypass_factor(a.bypass_fraction, a.r_ss, 3.7)));
         let r_s = ends.map(|e| mix((1.0 / e).powf(2.0 - 1.0), (1.0 / e).powf(2.0 - 0.2)));
         BellFactors { J_c: j_c, J_l: j_l, J_b: j_b, J_s: j_s, J_r: j_r, J_total: j_c * j_l * j_b * j_s * j_r, R_l: r_l, R_b: r_b, R_s: r_s }
     }
@@ -540,16 +541,20 @@ pub struct ShellRating {
     /// Shell-side Reynolds number of the method.
     pub reynolds: f64,
     /// Ideal (uncorrected) h, W/(m²·K) (Bell–Delaware).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub ideal_h_W_m2K: Option<f64>,
     /// Shell-side h, W/(m²·K).
     pub h_W_m2K: f64,
     /// Correction factors (Bell–Delaware).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub factors: Option<BellFactors>,
     /// Pressure drop by zone (Bell–Delaware).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub zones: Option<ShellZones>,
     /// Shell-side pressure drop of all shells at this point, Pa (before nozzles).
     pub pressure_drop_Pa: f64,
     /// Derived areas and counts (Bell–Delaware).
+    #[serde(skip_serializing_if = "Option::is_none")]
     pub areas: Option<BundleAreas>,
     /// Baffles per shell and shells.
     pub baffles_per_shell: usize,
