@@ -240,7 +240,8 @@ impl TransientSpec {
                 _ => None,
             })
             .sum::<f64>()
-            * self.fin_volumetric_heat_capacity;
+            * self.fin_volumetric_heat_capacity
+            + 0.0; // an empty sum is −0.0; reports should read 0
         let shell = match (&case.geometry, self.shell) {
             (Geometry::DoublePipe { ds, tube_side, .. }, Some((t, rho_c))) => {
                 let area = PI / 4.0 * ((ds + 2.0 * t).powi(2) - ds * ds);
