@@ -261,3 +261,85 @@ fn ideal_bank_agrees_with_zukauskas() {
         }
     }
 }
+
+mod random_shells {
+    use proptest::prelude::*;
+
+    /// A shell-and-tube case from the demo with random layout, pitch, cut, spacing, tube count,
+    /// clearances, strips, flows, passes, shells and method.
+    #[allow(clippy::too_many_arguments)]
+    fn text(
+        layout: u32,
+        pitch: f64,
+        cut: f64,
+        spacing: f64,
+        fill: f64,
+        lsb: f64,
+        strips: u32,
+        m_shell: f64,
+        m_tube: f64,
+        passes: u32,
+        shells: u32,
+        kern: bool,
+    ) -> String {
+        let d = 0.01905;
+        let pt = pitch * d;
+        let (ds, dotl) = (0.3366, 0.320);
+        let cell = if layout == 30 || layout == 60 { 3f64.sqrt() / 2.0 } else { 1.0 } * pt * pt;
+        let room = std::f64::consts::PI / 4.0 * (dotl - d) * (dotl - d) / cell;
+        let tubes = ((fill * room / passes as f64).floor().max(1.0) as u32) * passes;
+        let demo = std::fs::read_to_string(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/shell-and-tube-water-cooler.toml")).unwrap();
+        demo.replace("tube_passes = 2", &format!("tube_passes = {passes}"))
+            .replace("shells_in_series = 2", &format!("shells_in_series = {shells}"))
+            .replace("tube_count = 124 ", &format!("tube_count = {tubes} "))
+            .replace("tube_pitch_m = 0.02381", &format!("tube_pitch_m = {pt}"))
+            .replace("tube_layout_deg = 30", &format!("tube_layout_deg = {layout}"))
+            .replace("baffle_cut_fraction = 0.25", &format!("baffle_cut_fraction = {cut}"))
+            .replace("baffle_spacing_m = 0.20", &format!("baffle_spacing_m = {spacing}"))
+            .replace("inlet_baffle_spacing_m = 0.30        # wider at the nozzles\n", "")
+            .replace("outlet_baffle_spacing_m = 0.30\n", "")
+            .replace("shell_baffle_clearance_m = 0.0045", &format!("shell_baffle_clearance_m = {lsb}"))
+            .replace("sealing_strip_pairs = 1", &format!("sealing_strip_pairs = {strips}"))
+            .replace("mass_flow_kg_s = 8.0", &format!("mass_flow_kg_s = {m_shell}"))
+            .replace("mass_flow_kg_s = 6.0", &format!("mass_flow_kg_s = {m_tube}"))
+            .replace("film = \"bell_delaware\"", if kern { "film = \"kern\"" } else { "film = \"bell_delaware\"" })
+            .replace("cells = 100", "cells = 12")
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 48, ..ProptestConfig::default() })]
+
+        /// Any valid random shell rates with energy closed, outlets within the inlets, every
+        /// factor in (0, 1.2], zones that add up and finite numbers throughout — or is refused
+        /// with a typed error, never a panic.
+        #[test]
+        fn random_shells_rate_within_the_laws(
+            layout in prop::sample::select(vec![30u32, 45, 60, 90]),
+            pitch in 1.2..2.0f64, cut in 0.15..0.45f64, spacing in 0.08..1.0f64, fill in 0.3..1.0f64,
+            lsb in 0.0..0.01f64, strips in 0u32..6, m_shell in 0.05..40.0f64, m_tube in 0.05..20.0f64,
+            passes in prop::sample::select(vec![1u32, 2, 4]), shells in 1u32..4, kern in any::<bool>(),
+        ) {
+            let t = text(layout, pitch, cut, spacing, fill, lsb, strips, m_shell, m_tube, passes, shells, kern);
+            let case = match hxgrid::case::parse_str(&t, "r", "r") {
+                Ok(c) => c,
+                Err(e) => { prop_assert!(!e.to_string().is_empty()); return Ok(()); }
+            };
+            let ex = case.build();
+            let r = match hxgrid::study::rate("r", &ex, &case.solver, &Default::default(), &mut hxgrid::solve::SilentObserver) {
+                Ok(r) => r,
+                Err(e) => { prop_assert!(!e.to_string().is_empty()); return Ok(()); }
+            };
+            prop_assert!(r.energy_imbalance_W.abs() <= 1e-8 * r.max_duty_W);
+            prop_assert!(r.hot_outlet_C <= 85.0 + 1e-9 && r.cold_outlet_C >= 25.0 - 1e-9 && r.hot_outlet_C >= 25.0 - 1e-9);
+            prop_assert!(hxgrid::output::check_finite(&r).is_ok());
+            let sh = r.shell_side.as_ref().expect("shell side rated");
+            prop_assert!(sh.rating.h_W_m2K > 0.0 && sh.rating.pressure_drop_Pa > 0.0);
+            if let (Some(f), Some(z)) = (&sh.rating.factors, &sh.rating.zones) {
+                for v in [f.J_c, f.J_l, f.J_b, f.J_s, f.J_r, f.R_l, f.R_b] {
+                    prop_assert!(v > 0.0 && v <= 1.2, "factor {v} in {f:?}");
+                }
+                prop_assert!(((z.crossflow_Pa + z.windows_Pa + z.end_zones_Pa) / z.shell_Pa - 1.0).abs() < 1e-12);
+            }
+        }
+    }
+}
