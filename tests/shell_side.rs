@@ -284,7 +284,7 @@ mod random_shells {
     ) -> String {
         let d = 0.01905;
         let pt = pitch * d;
-        let (ds, dotl) = (0.3366, 0.320);
+        let dotl = 0.320; // the demo's bundle diameter
         let cell = if layout == 30 || layout == 60 { 3f64.sqrt() / 2.0 } else { 1.0 } * pt * pt;
         let room = std::f64::consts::PI / 4.0 * (dotl - d) * (dotl - d) / cell;
         let tubes = ((fill * room / passes as f64).floor().max(1.0) as u32) * passes;
