@@ -279,3 +279,55 @@ fn new_never_follows_a_link() {
     assert_eq!(o.status.code(), Some(3), "{}", text(&o));
     assert!(!dir.join("elsewhere.toml").exists());
 }
+
+/// Test scratch folders clean up only what is theirs: a symbolic link inside to a folder
+/// elsewhere is removed as a link, the folder it points to and its file stay; and a scratch
+/// path that no longer names the folder the test made (moved away, another folder put in its
+/// place) is left alone on drop.
+#[test]
+fn scratch_cleanup_removes_only_its_own_folder() {
+    let outside = common::Scratch::new("scratch-outside");
+    std::fs::write(outside.join("keep.txt"), "not the scratch folder's").unwrap();
+    let inner = common::Scratch::new("scratch-with-link");
+    let inner_path = inner.to_path_buf();
+    std::os::unix::fs::symlink(&*outside, inner.join("link")).unwrap();
+    std::fs::create_dir(inner.join("sub")).unwrap();
+    std::os::unix::fs::symlink(outside.join("keep.txt"), inner.join("sub/file-link")).unwrap();
+    drop(inner);
+    assert!(!inner_path.exists(), "the scratch folder itself is removed");
+    assert_eq!(std::fs::read_to_string(outside.join("keep.txt")).unwrap(), "not the scratch folder's");
+
+    let moved = common::Scratch::new("scratch-moved");
+    let path = moved.to_path_buf();
+    let away = outside.join("moved-away");
+    std::fs::rename(&path, &away).unwrap();
+    std::fs::create_dir(&path).unwrap();
+    std::fs::write(path.join("someone-elses.txt"), "x").unwrap();
+    drop(moved);
+    assert!(path.join("someone-elses.txt").is_file(), "a folder put in its place is not the scratch folder");
+    assert!(away.is_dir(), "the moved folder is not chased");
+    std::fs::remove_file(path.join("someone-elses.txt")).unwrap();
+    std::fs::remove_dir(&path).unwrap();
+}
+
+/// No source file removes a whole tree: hxgrid deletes only the files its marker lists and
+/// then the empty folder (`output::folder`), and test scratch folders use their own guarded
+/// walk (`src/scratch.rs`). Regression: test clean-up once used `remove_dir_all`.
+#[test]
+fn no_source_file_removes_a_whole_tree() {
+    let mut stack = vec![std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src")];
+    let mut seen = 0;
+    while let Some(dir) = stack.pop() {
+        for entry in std::fs::read_dir(&dir).unwrap() {
+            let path = entry.unwrap().path();
+            if path.is_dir() {
+                stack.push(path);
+            } else if path.extension().is_some_and(|e| e == "rs") {
+                let text = std::fs::read_to_string(&path).unwrap();
+                assert!(!text.contains(concat!("remove_dir", "_all")), "{} removes a whole tree", path.display());
+                seen += 1;
+            }
+        }
+    }
+    assert!(seen > 30);
+}
