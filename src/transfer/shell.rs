@@ -278,12 +278,6 @@ impl IdealBank {
         (a1 * c.powf(a) * re.powf(a2), b1 * c.powf(b) * re.powf(b2))
     }
 
-    /// (j, f) without the switch blend.
-    fn raw(&self, re: f64, pitch_ratio: f64) -> (f64, f64) {
-        let (j, f) = self.at_row(Self::row(re), re, pitch_ratio);
-        (j, f)
-    }
-
     /// (j, f) with each switch blended linearly in ln Re over ±5 %.
     fn smooth(&self, re: f64, pitch_ratio: f64) -> (f64, f64) {
         for &s in &BANK_SWITCHES {
@@ -295,14 +289,15 @@ impl IdealBank {
                 return ((1.0 - w) * jl + w * jh, (1.0 - w) * fl + w * fh);
             }
         }
-        self.raw(re, pitch_ratio)
+        self.at_row(Self::row(re), re, pitch_ratio)
     }
 }
 
 /// Taborek's ideal tube-bank Colburn j and friction factor f at Re = d ṁ/(μ S_m), without
 /// the switch blend (for checks against the table).
 pub fn ideal_bank_raw(layout: PitchLayout, re: f64, pitch_ratio: f64) -> (f64, f64) {
-    IdealBank::for_layout(layout).raw(re, pitch_ratio)
+    let bank = IdealBank::for_layout(layout);
+    bank.at_row(IdealBank::row(re), re, pitch_ratio)
 }
 
 /// The same with the row switches blended (what the film coefficient uses).
