@@ -14,6 +14,11 @@ use std::path::PathBuf;
         "  hxgrid run my.toml --out results/my-run       choose the results folder\n",
         "  hxgrid run my.toml --grid-study 4             also solve at N, 2N, 4N, 8N cells\n",
         "  hxgrid simulate cases/water-cooler-startup.toml   transient: cold start and a pump trip\n",
+        "  hxgrid size cases/water-cooler-sizing.toml    find the length (or flow, rows) that meets [size]\n",
+        "  hxgrid sweep cases/water-cooler-sweep.toml   rate every point of [sweep], on all cores\n",
+        "  hxgrid sweep my.toml --shard 2/4              run the 2nd of 4 slices (one job of a cluster array)\n",
+        "  hxgrid merge shard-1 shard-2 shard-3 shard-4  join the slices into the unsharded result\n",
+        "  hxgrid uncertainty my.toml                    P05/P50/P95 of duty and outlets from [uncertainty]\n",
         "  hxgrid check my.toml                          validate only\n",
         "  hxgrid new my.toml                            write a commented starter case\n",
         "  hxgrid fluids                                 list the fluids a case can name\n",
@@ -22,7 +27,9 @@ use std::path::PathBuf;
         "  hxgrid props --table my-oil.csv               check and print your own table\n\n",
         "Exit codes: 0 success · 2 command-line usage error · 3 invalid case file or input · ",
         "4 solver failure (no results written) · 5 results could not be written or the folder is not hxgrid's · ",
-        "6 a transient stopped early on a physical limit (results up to then written)"
+        "6 a transient stopped early on a physical limit (results up to then written) · ",
+        "7 a row of hxgrid verify failed · 8 a sizing target cannot be reached (the reachable limit is stated). ",
+        "Parallel commands use every core (RAYON_NUM_THREADS=n to limit)"
     )
 )]
 pub struct Cli {
@@ -57,6 +64,56 @@ pub enum Command {
         /// Case file (TOML) with a [transient] section.
         case: PathBuf,
         /// Results folder (default: output/<case name>-transient).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Print nothing but errors (no progress bar).
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Find the value of one input that meets the case's [size] target (a duty or an outlet
+    /// temperature) and write the sized exchanger's results with the sizing outcome.
+    Size {
+        /// Case file (TOML) with a [size] table.
+        case: PathBuf,
+        /// Results folder (default: output/<case name>-sized).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Print nothing but errors.
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Rate every point of the case's [sweep] in parallel: sweep.csv (a row per point, with
+    /// its status), sweep.json and sweep.svg.
+    Sweep {
+        /// Case file (TOML) with a [sweep] table.
+        case: PathBuf,
+        /// Results folder (default: output/<case name>-sweep, or -sweep-shard-K-of-N).
+        #[arg(long)]
+        out: Option<PathBuf>,
+        /// Run only the K-th of N interleaved slices of the points (K from 1), for one job
+        /// of a cluster array; join the slices with `hxgrid merge`.
+        #[arg(long, value_name = "K/N", value_parser = parse_shard)]
+        shard: Option<(usize, usize)>,
+        /// Print nothing but errors (no progress bar).
+        #[arg(long, short)]
+        quiet: bool,
+    },
+    /// Join the shard folders of one sweep into the folder the unsharded run writes
+    /// (identical files).
+    Merge {
+        /// The shard folders (all N of them, any order).
+        #[arg(required = true)]
+        shards: Vec<PathBuf>,
+        /// Results folder (default: output/<case name>-sweep).
+        #[arg(long)]
+        out: Option<PathBuf>,
+    },
+    /// Propagate the case's [uncertainty] (film coefficients, fouling, flows, inlet
+    /// temperatures) by Latin-hypercube Monte Carlo: P05/P50/P95 and the main contributors.
+    Uncertainty {
+        /// Case file (TOML); without an [uncertainty] table the defaults are used.
+        case: PathBuf,
+        /// Results folder (default: output/<case name>-uncertainty).
         #[arg(long)]
         out: Option<PathBuf>,
         /// Print nothing but errors (no progress bar).
@@ -106,6 +163,17 @@ pub enum Command {
         #[arg(long, value_name = "K")]
         step: Option<f64>,
     },
+}
+
+/// `K/N` with 1 ≤ K ≤ N.
+fn parse_shard(s: &str) -> Result<(usize, usize), String> {
+    let bad = || format!("\"{s}\" is not K/N: give the slice and the number of slices, e.g. 2/4, with 1 ≤ K ≤ N ≤ 100000");
+    let (k, n) = s.split_once('/').ok_or_else(bad)?;
+    let (k, n): (usize, usize) = (k.trim().parse().map_err(|_| bad())?, n.trim().parse().map_err(|_| bad())?);
+    if k == 0 || k > n || n > 100_000 {
+        return Err(bad());
+    }
+    Ok((k, n))
 }
 
 /// The table-file format, shown by `hxgrid props --help`.

@@ -27,6 +27,7 @@
 #![warn(missing_docs)]
 
 pub mod case;
+pub mod design;
 pub mod fluid;
 pub mod lumped;
 pub mod model;

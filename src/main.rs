@@ -47,6 +47,10 @@ fn main() -> ExitCode {
     match args.command {
         Command::Run { case, out, grid_study, all_cells, quiet } => run(&case, out, grid_study.map(|g| g as usize), WriteOptions { all_cells }, quiet),
         Command::Simulate { case, out, quiet } => simulate(&case, out, quiet),
+        Command::Size { case, out, quiet } => size(&case, out, quiet),
+        Command::Sweep { case, out, shard, quiet } => sweep(&case, out, shard, quiet),
+        Command::Merge { shards, out } => merge(&shards, out),
+        Command::Uncertainty { case, out, quiet } => uncertainty(&case, out, quiet),
         Command::Check { case } => check(&case),
         Command::Verify { json } => verify(json),
         Command::New { path } => new_case(&path),
@@ -244,10 +248,25 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, write: Writ
         Ok(r) => r,
         Err(e) => return solver_failed(&e, case::advice::steady(&e)),
     };
+    // A rated case with a [size] table also gets its design margin against that target.
+    let report = match &case.design.size {
+        None => report,
+        Some(spec) => match hxgrid::design::size::size(&case.source, spec) {
+            Ok((sizing, _)) => SteadyReport { sizing: Some(sizing), ..report },
+            Err(e) => {
+                let mut r = report;
+                r.warnings.push(format!("design margin against [size] not computed: {e}"));
+                r
+            }
+        },
+    };
     let written = hxgrid::output::write_steady(&report, &dir, write);
     let stride = hxgrid::output::profile_stride(report.profile.len(), write);
     finish(written, quiet, || {
         print_report(&report);
+        if let Some(s) = &report.sizing {
+            outln!("{}", hxgrid::output::console::sizing(s));
+        }
         if stride > 1 {
             outln!("\nprofiles.csv holds every {stride}th of the {} cells (and the last); run with --all-cells to write every cell", report.profile.len());
         }
@@ -359,4 +378,186 @@ fn print_transient(r: &hxgrid::scenario::TransientReport) {
 
 fn print_report(r: &SteadyReport) {
     outln!("{}", hxgrid::output::console::steady(r));
+}
+
+/// A sizing target cannot be reached (the reachable limit is stated).
+const EXIT_UNREACHABLE: u8 = 8;
+
+/// A progress bar over `n` items on a terminal (stderr), else nothing.
+fn count_bar(n: usize, quiet: bool, what: &str) -> Option<indicatif::ProgressBar> {
+    use std::io::IsTerminal;
+    (!quiet && std::io::stderr().is_terminal()).then(|| {
+        let b = indicatif::ProgressBar::new(n as u64);
+        b.set_style(
+            indicatif::ProgressStyle::with_template(&format!("{{spinner}} {what} {{pos}}/{{len}} [{{bar:40}}] elapsed {{elapsed_precise}}, left ~{{eta}}"))
+                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+        );
+        b
+    })
+}
+
+/// Map a sizing error to its message and exit code.
+fn sizing_failed(e: &hxgrid::design::size::SizeError) -> ExitCode {
+    use hxgrid::design::size::SizeError;
+    errln!("error: {e}.\nNo results were written; earlier results (if any) are untouched.");
+    match e {
+        SizeError::Unreachable { .. } | SizeError::Insensitive { .. } => ExitCode::from(EXIT_UNREACHABLE),
+        SizeError::Failed { solver: true, .. } => ExitCode::from(EXIT_SOLVER),
+        SizeError::Failed { .. } => ExitCode::from(EXIT_INPUT),
+    }
+}
+
+fn size(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
+    let case = match load(path) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    print_warnings(&case);
+    let Some(spec) = &case.design.size else {
+        errln!(
+            "error: {} has no [size] table: add one with a target (duty_W, hot_outlet_C or cold_outlet_C) and vary = \"<key>\" (e.g. \"length_m\"); see README",
+            path.display()
+        );
+        return ExitCode::from(EXIT_INPUT);
+    };
+    let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-sized", case.name)));
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
+    let (sizing, sized) = match hxgrid::design::size::size(&case.source, spec) {
+        Ok(s) => s,
+        Err(e) => return sizing_failed(&e),
+    };
+    let exchanger = sized.build();
+    let report = match study::rate(&sized.name, &exchanger, &sized.solver, &RatingOptions::default(), &mut Progress { quiet: true }) {
+        Ok(r) => SteadyReport { sizing: Some(sizing), ..r },
+        Err(e) => return solver_failed(&e, case::advice::steady(&e)),
+    };
+    let written = hxgrid::output::write_steady(&report, &dir, WriteOptions::default());
+    finish(written, quiet, || {
+        print_report(&report);
+        if let Some(s) = &report.sizing {
+            outln!("{}", hxgrid::output::console::sizing(s));
+        }
+    })
+}
+
+fn sweep(path: &Path, out: Option<PathBuf>, shard: Option<(usize, usize)>, quiet: bool) -> ExitCode {
+    use hxgrid::design::sweep;
+    use hxgrid::output::design::{sweep_header, sweep_line, write_sweep, Shard, SweepManifest};
+    let case = match load(path) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    print_warnings(&case);
+    let Some(spec) = &case.design.sweep else {
+        errln!(
+            "error: {} has no [sweep] table: add one [[sweep.inputs]] table per input (key = \"hot.mass_flow_kg_s\", and values = [...] or start/stop/count); see README",
+            path.display()
+        );
+        return ExitCode::from(EXIT_INPUT);
+    };
+    let total = sweep::point_count(spec);
+    if let Some((k, n)) = shard {
+        if k > total {
+            errln!("error: --shard {k}/{n}: the sweep has only {total} points, so slice {k} would be empty: use at most {total} slices");
+            return ExitCode::from(EXIT_INPUT);
+        }
+    }
+    let dir = out.unwrap_or_else(|| {
+        Path::new("output").join(match shard {
+            None => format!("{}-sweep", case.name),
+            Some((k, n)) => format!("{}-sweep-shard-{k}-of-{n}", case.name),
+        })
+    });
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
+    let indices = sweep::shard_indices(total, shard);
+    let bar = count_bar(indices.len(), quiet, "points");
+    let tick = || {
+        if let Some(b) = &bar {
+            b.inc(1);
+        }
+    };
+    let points = sweep::run(&case.source, spec, &indices, &tick);
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    let lines: Vec<String> = points.iter().map(sweep_line).collect();
+    let manifest = SweepManifest::new(&case.name, &case.source.sha256(), spec.combine, &spec.inputs, total, shard.map(|(index, count)| Shard { index, count }), &lines);
+    let written = write_sweep(&dir, &manifest, &sweep_header(&spec.inputs), &lines);
+    finish(written, quiet, || {
+        outln!(
+            "\n{} — sweep of {}: {} of {} points rated here, {} failed (status and error in sweep.csv)",
+            case.name,
+            spec.inputs.iter().map(|i| i.key.as_str()).collect::<Vec<_>>().join(" × "),
+            manifest.points_in_file,
+            total,
+            manifest.points_failed
+        );
+        if let Some((k, n)) = shard {
+            outln!("shard {k} of {n}: join all {n} shard folders with `hxgrid merge`");
+        }
+        outln!("\nCaution: {}", hxgrid::results::CAUTION);
+    })
+}
+
+fn merge(shards: &[PathBuf], out: Option<PathBuf>) -> ExitCode {
+    use hxgrid::output::design::MergeError;
+    let dir = match out {
+        Some(d) => d,
+        None => {
+            let name = shards.first().and_then(|d| std::fs::read_to_string(d.join("sweep.json")).ok()).and_then(|t| {
+                serde_json::from_str::<hxgrid::output::design::SweepManifest>(&t).ok().map(|m| m.case).filter(|c| case::check_name(c).is_ok())
+            });
+            match name {
+                Some(n) => Path::new("output").join(format!("{n}-sweep")),
+                None => {
+                    errln!("error: {} holds no sweep.json hxgrid wrote: give the shard folders of one `hxgrid sweep --shard K/N` run", shards[0].display());
+                    return ExitCode::from(EXIT_INPUT);
+                }
+            }
+        }
+    };
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
+    match hxgrid::output::design::merge(shards, &dir) {
+        Ok(files) => finish(Ok(files), false, || outln!("merged {} shard folders into {}", shards.len(), dir.display())),
+        Err(MergeError::Input(m)) => {
+            errln!("error: {m}");
+            ExitCode::from(EXIT_INPUT)
+        }
+        Err(MergeError::Output(e)) => finish(Err(e), false, || {}),
+    }
+}
+
+fn uncertainty(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
+    let case = match load(path) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    print_warnings(&case);
+    let spec = case.design.uncertainty.clone().unwrap_or_else(hxgrid::design::UncertaintySpec::defaults);
+    let dir = out.unwrap_or_else(|| Path::new("output").join(format!("{}-uncertainty", case.name)));
+    if let Err(code) = destination_ok(&dir) {
+        return code;
+    }
+    let exchanger = case.build();
+    let nominal = match study::rate(&case.name, &exchanger, &case.solver, &RatingOptions::default(), &mut Progress { quiet: true }) {
+        Ok(r) => r,
+        Err(e) => return solver_failed(&e, case::advice::steady(&e)),
+    };
+    let bar = count_bar(spec.samples, quiet, "samples");
+    let tick = || {
+        if let Some(b) = &bar {
+            b.inc(1);
+        }
+    };
+    let report = hxgrid::design::uncertainty::study(&case, &nominal, &spec, &tick);
+    if let Some(b) = &bar {
+        b.finish_and_clear();
+    }
+    finish(hxgrid::output::design::write_uncertainty(&dir, &report), quiet, || outln!("{}", hxgrid::output::console::uncertainty(&report)))
 }

@@ -27,6 +27,88 @@ pub struct CaseFile {
     #[serde(default)]
     pub solver: SolverFile,
     pub transient: Option<TransientFile>,
+    /// `hxgrid size`: the target and the input varied to meet it.
+    pub size: Option<SizeFile>,
+    /// `hxgrid sweep`: inputs to vary over a list or a range.
+    pub sweep: Option<SweepFile>,
+    /// `hxgrid uncertainty`: Monte Carlo propagation of input uncertainties.
+    pub uncertainty: Option<UncertaintyFile>,
+}
+
+/// `[size]`: exactly one target, and the input varied to meet it.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct SizeFile {
+    /// Target duty, W.
+    pub duty_W: Option<f64>,
+    /// Target hot outlet temperature, °C.
+    pub hot_outlet_C: Option<f64>,
+    /// Target cold outlet temperature, °C.
+    pub cold_outlet_C: Option<f64>,
+    /// The free input: the dotted key of a positive number the case file sets
+    /// ("length_m", "hot.mass_flow_kg_s", "geometry.rows"; a whole-number key is sized in
+    /// whole steps).
+    pub vary: String,
+    /// Smallest value to try (default: the case's value / 100; a whole number: 1).
+    pub lowest: Option<f64>,
+    /// Largest value to try (default: the case's value × 100).
+    pub highest: Option<f64>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, JsonSchema)]
+#[serde(rename_all = "snake_case")]
+pub enum SweepCombine {
+    Factorial,
+    Paired,
+}
+
+/// `[sweep]`: the inputs and how their values combine.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct SweepFile {
+    /// "factorial" (default: every combination) or "paired" (the i-th values together).
+    pub combine: Option<SweepCombine>,
+    /// One `[[sweep.inputs]]` table per swept input.
+    pub inputs: Vec<SweepInputFile>,
+}
+
+/// `[[sweep.inputs]]`: one swept input, by a list of values or an evenly spaced range.
+#[derive(Debug, Clone, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct SweepInputFile {
+    /// Dotted key of a number the case file sets ("hot.mass_flow_kg_s").
+    pub key: String,
+    /// The values, in the key's own unit.
+    pub values: Option<Vec<f64>>,
+    /// Or a range: first value,
+    pub start: Option<f64>,
+    /// last value,
+    pub stop: Option<f64>,
+    /// and how many evenly spaced values (≥ 2).
+    pub count: Option<i64>,
+}
+
+/// `[uncertainty]`: ± half-widths of each input's uncertainty (rectangular distributions),
+/// propagated by Latin-hypercube sampling. Unset ones take the defaults the README lists.
+#[derive(Debug, Clone, Default, Deserialize, JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct UncertaintyFile {
+    /// Samples (default 200).
+    pub samples: Option<i64>,
+    /// Random seed (default 1): the same seed gives the same samples.
+    pub seed: Option<i64>,
+    /// ± % on the hot film coefficient (default: the correlation's stated accuracy).
+    pub hot_film_percent: Option<f64>,
+    pub cold_film_percent: Option<f64>,
+    /// ± % on the hot fouling resistance (default 50).
+    pub hot_fouling_percent: Option<f64>,
+    pub cold_fouling_percent: Option<f64>,
+    /// ± % on the hot mass flow (default 2).
+    pub hot_mass_flow_percent: Option<f64>,
+    pub cold_mass_flow_percent: Option<f64>,
+    /// ± K on the hot inlet temperature (default: IEC 60751 class B, 0.3 K + 0.005 |t|).
+    pub hot_inlet_temperature_K: Option<f64>,
+    pub cold_inlet_temperature_K: Option<f64>,
 }
 
 /// `[crossflow]`: the hot stream flows along `[solver] cells`, the cold across.

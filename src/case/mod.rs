@@ -4,6 +4,7 @@
 pub mod advice;
 mod arrangement_input;
 mod build;
+mod design_input;
 mod file;
 mod geometry_input;
 mod problem;

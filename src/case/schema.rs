@@ -21,6 +21,8 @@ enum Ty {
     NumList,
     /// A table (an object schema).
     Table(Value2),
+    /// A list of tables (`[[name]]`), each of the object schema.
+    TableList(Value2),
     /// A table whose `tag` key selects one of several object schemas (the geometry `kind`).
     Tagged(String, Vec<(String, Value2)>),
 }
@@ -135,7 +137,10 @@ fn type_of(root: &Value2, s: &Value2) -> Ty {
     if has_type(s, "object") {
         Ty::Table(s.clone())
     } else if has_type(s, "array") {
-        Ty::NumList
+        match s.get("items").map(|i| resolve(root, i)) {
+            Some(item) if has_type(item, "object") => Ty::TableList(item.clone()),
+            _ => Ty::NumList,
+        }
     } else if has_type(s, "integer") {
         Ty::Int
     } else if has_type(s, "boolean") {
@@ -157,6 +162,7 @@ fn fields_of(root: &Value2, object: &Value2) -> Vec<Field> {
             let ty = type_of(root, s);
             let hint = match (&ty, unit_hint(key)) {
                 (Ty::Table(_) | Ty::Tagged(..), _) => format!("the [{key}] table"),
+                (Ty::TableList(_), _) => format!("one or more [[{key}]] tables"),
                 (Ty::Int, _) => "a whole number".to_string(),
                 (_, Some(u)) => u.to_string(),
                 _ => key.replace('_', " "),
@@ -325,6 +331,15 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
                 }
                 None => wrong(&format!("a table [{}]", dotted(path, key))),
             },
+            (Ty::TableList(sub), Item::ArrayOfTables(list)) => {
+                for (i, t) in list.iter().enumerate() {
+                    path.push(format!("{key}[{i}]"));
+                    let header = t.span().map(|s| line_of(text, s.start)).or(line);
+                    walk(text, root, t, path, &fields_of(root, sub), header, shape);
+                    path.pop();
+                }
+            }
+            (Ty::TableList(_), _) => wrong(&format!("one or more [[{}]] tables", dotted(path, key))),
             (Ty::Table(sub), item) => match item.as_table_like() {
                 Some(t) => {
                     path.push(key.to_string());
@@ -348,6 +363,37 @@ fn walk(text: &str, root: &Value2, table: &dyn TableLike, path: &mut Vec<String>
     }
 }
 
+/// A path segment `name[i]` (a table of a `[[name]]` list) as (name, Some(i)).
+fn segment(part: &str) -> (&str, Option<usize>) {
+    match part.strip_suffix(']').and_then(|p| p.split_once('[')) {
+        Some((name, i)) => match i.parse() {
+            Ok(i) => (name, Some(i)),
+            Err(_) => (part, None),
+        },
+        None => (part, None),
+    }
+}
+
+/// The table a path segment names inside `table` (mutable).
+fn child_mut<'a>(table: &'a mut dyn TableLike, part: &str) -> Option<&'a mut dyn TableLike> {
+    let (name, index) = segment(part);
+    let item = table.get_mut(name)?;
+    match index {
+        None => item.as_table_like_mut(),
+        Some(i) => item.as_array_of_tables_mut()?.get_mut(i).map(|t| t as &mut dyn TableLike),
+    }
+}
+
+/// The table a path segment names inside `table`.
+fn child<'a>(table: &'a dyn TableLike, part: &str) -> Option<&'a dyn TableLike> {
+    let (name, index) = segment(part);
+    let item = table.get(name)?;
+    match index {
+        None => item.as_table_like(),
+        Some(i) => item.as_array_of_tables()?.get(i).map(|t| t as &dyn TableLike),
+    }
+}
+
 /// `text` with the unknown and wrong-typed keys removed and invalid words replaced by a
 /// valid stand-in, so the rest of the file can be read and its values checked.
 pub fn readable(text: &str, shape: &Shape) -> String {
@@ -361,7 +407,7 @@ pub fn readable(text: &str, shape: &Shape) -> String {
                 }
             }
             [first, rest @ ..] => {
-                if let Some(t) = table.get_mut(first).and_then(|i| i.as_table_like_mut()) {
+                if let Some(t) = child_mut(table, first) {
                     set(t, rest, word);
                 }
             }
@@ -380,9 +426,10 @@ pub fn line_of_key(text: &str, dotted: &str) -> Option<usize> {
     let mut table: &dyn TableLike = doc.as_table();
     let mut line = None;
     for part in dotted.split('.') {
-        let Some(item) = table.get(part) else { return line };
-        line = table.key(part).and_then(|k| k.span()).or_else(|| item.span()).map(|s| line_of(text, s.start)).or(line);
-        match item.as_table_like() {
+        let name = segment(part).0;
+        let Some(item) = table.get(name) else { return line };
+        line = table.key(name).and_then(|k| k.span()).or_else(|| item.span()).map(|s| line_of(text, s.start)).or(line);
+        match child(table, part) {
             Some(t) => table = t,
             None => return line,
         }
@@ -399,7 +446,7 @@ pub fn without(text: &str, unknown: &[Vec<String>]) -> String {
                 table.remove(last);
             }
             [first, rest @ ..] => {
-                if let Some(t) = table.get_mut(first).and_then(|i| i.as_table_like_mut()) {
+                if let Some(t) = child_mut(table, first) {
                     remove(t, rest);
                 }
             }

@@ -169,6 +169,10 @@ pub struct Case {
     pub transient: Option<TransientSpec>,
     /// Legal but suspicious inputs.
     pub warnings: Vec<String>,
+    /// The study tables (`[size]`, `[sweep]`, `[uncertainty]`).
+    pub design: crate::design::DesignSpec,
+    /// The text the case was read from, for studies that vary it.
+    pub source: std::sync::Arc<crate::design::Source>,
 }
 
 /// Metal heat capacities of a transient, per metre of exchanger length (reported in

@@ -51,8 +51,14 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
         Err(_) => return Err(invalid(shape.problems)),
     };
     let mut problems = shape.problems.clone();
-    match validate(&file, default_name, base_dir) {
+    match validate(&file, default_name, base_dir, text) {
         Ok(mut case) if problems.is_empty() => {
+            case.source = std::sync::Arc::new(crate::design::Source {
+                text: text.to_string(),
+                origin: origin.to_string(),
+                default_name: default_name.to_string(),
+                base_dir: base_dir.to_path_buf(),
+            });
             let ex = case.build();
             let derived = derived_problems(&case, &ex);
             if !derived.is_empty() {
@@ -137,8 +143,9 @@ pub fn velocity_warnings(ex: &crate::model::Exchanger) -> Vec<String> {
     out
 }
 
-fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, Vec<Problem>> {
+fn validate(f: &CaseFile, default_name: &str, base_dir: &Path, text: &str) -> Result<Case, Vec<Problem>> {
     let mut c = Checker { problems: Vec::new(), warnings: Vec::new() };
+    let design = super::design_input::design(&mut c, f, text);
     let geometry = geometry(&mut c, f);
     let length_m = match (&geometry, f.length_m) {
         (Geometry::TubeBank { bank, .. }, given) => {
@@ -216,6 +223,8 @@ fn validate(f: &CaseFile, default_name: &str, base_dir: &Path) -> Result<Case, V
         return Err(c.problems);
     }
     Ok(Case {
+        design,
+        source: Default::default(),
         transient,
         name,
         arrangement,

@@ -186,3 +186,65 @@ pub fn steady(r: &SteadyReport) -> String {
     let _ = writeln!(out, "\nCaution: {}", r.caution);
     out.trim_end().to_string()
 }
+
+/// The sizing outcome as printed after `hxgrid size` (and, as a design margin, `hxgrid run`).
+pub fn sizing(s: &crate::design::size::Sizing) -> String {
+    use crate::text::num;
+    let mut out = String::new();
+    let unit = if s.target == "duty_W" { "W" } else { "°C" };
+    let _ = writeln!(out, "\nsizing: {} = {} {unit} by varying {}", s.target, num(s.goal), s.vary);
+    let found = if s.whole_number { format!("{} (the smallest whole size that meets the target)", num(s.value)) } else { format!("{:.6}", s.value) };
+    let _ = writeln!(out, "  {} = {found}   (case file: {})", s.vary, num(s.case_value));
+    let _ = writeln!(out, "  achieved {} = {:.6} {unit} (achieved − goal {:+.3e}; continuous tolerance {:.1e})", s.target, s.achieved, s.achieved_minus_goal, s.tolerance);
+    if let Some(n) = &s.next_size_misses {
+        let _ = writeln!(out, "  next size down, {} = {}: {} = {:.6} {unit} (misses by {:+.3e})", s.vary, num(n.value), s.target, n.achieved, n.achieved_minus_goal);
+    }
+    let _ = writeln!(out, "  {} complete grid solves, {} Newton iterations in all (warm-started)", s.evaluations, s.newton_iterations);
+    match s.overdesign_percent {
+        Some(o) => {
+            let _ = writeln!(
+                out,
+                "  area: case {:.4} m², required {:.4} m² → overdesign {:+.2} % (available / required − 1)",
+                s.area_available_m2, s.area_required_m2, o
+            );
+        }
+        None => {
+            let _ = writeln!(out, "  area {:.4} m² (the free input does not change the area: no overdesign figure)", s.area_available_m2);
+        }
+    }
+    out.trim_end().to_string()
+}
+
+/// The uncertainty table as printed after `hxgrid uncertainty`.
+pub fn uncertainty(r: &crate::design::uncertainty::UncertaintyReport) -> String {
+    let mut out = String::new();
+    let _ = writeln!(out, "\n{} — uncertainty, {} Latin-hypercube samples (seed {}), {} cells each", r.case, r.samples, r.seed, r.cells);
+    if r.samples_failed > 0 {
+        let _ = writeln!(out, "  {} samples failed and are left out (see samples.csv)", r.samples_failed);
+    }
+    let _ = writeln!(out, "\n{:<16}{:>14}{:>12}{:>14}{:>14}{:>14}", "", "nominal", "grid error", "P05", "P50", "P95");
+    for s in &r.results {
+        let g = s.grid_error.map(|g| format!("{g:.2e}")).unwrap_or_else(|| "—".into());
+        let _ = writeln!(out, "{:<16}{:>14.3}{:>12}{:>14.3}{:>14.3}{:>14.3}", s.quantity, s.nominal, g, s.p05, s.p50, s.p95);
+    }
+    let _ = writeln!(out, "\n{:<28}{:>10}{:>12}{:>13}{:>13}  source", "input (±)", "half-width", "duty share", "hot out sh.", "cold out sh.");
+    for c in &r.contributors {
+        let source = r.inputs.iter().find(|f| f.key == c.key).map(|f| f.source.as_str()).unwrap_or("");
+        let _ = writeln!(
+            out,
+            "{:<28}{:>8.3} {:<2}{:>11.1}%{:>12.1}%{:>12.1}%  {}",
+            c.key,
+            c.half_width,
+            c.unit,
+            c.duty_share_percent,
+            c.hot_outlet_share_percent,
+            c.cold_outlet_share_percent,
+            crate::text::safe_message(source, 90, 1).trim_end()
+        );
+    }
+    for n in &r.notes {
+        let _ = writeln!(out, "note: {n}");
+    }
+    let _ = writeln!(out, "\nCaution: {}", r.caution);
+    out.trim_end().to_string()
+}

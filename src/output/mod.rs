@@ -11,9 +11,10 @@
 
 pub mod console;
 mod csv;
-mod finite;
+pub mod design;
+pub(crate) mod finite;
 pub mod folder;
-mod svg;
+pub(crate) mod svg;
 
 use crate::results::SteadyReport;
 use crate::scenario::TransientReport;

@@ -400,3 +400,45 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
     legend(&mut chart, SeriesLabelPosition::UpperRight, 12, &e)?;
     root.present().map_err(|x| e(x.to_string()))
 }
+
+/// One curve of a study plot: label and points.
+pub type StudyCurve = (String, Vec<(f64, f64)>);
+
+/// Stacked panels of curves against one input (sweeps): each panel a y label and its curves;
+/// points are drawn as markers joined by lines.
+pub fn study_panels(path: &Path, title: &str, x_label: &str, panels: &[(String, Vec<StudyCurve>)]) -> Result<(), OutputError> {
+    const PALETTE: [RGBColor; 8] = [
+        RGBColor(31, 119, 180),
+        RGBColor(214, 39, 40),
+        RGBColor(44, 160, 44),
+        RGBColor(148, 103, 189),
+        RGBColor(255, 127, 14),
+        RGBColor(140, 86, 75),
+        RGBColor(227, 119, 194),
+        RGBColor(23, 190, 207),
+    ];
+    let e = plot_err(path);
+    let root = SVGBackend::new(path, (SIZE.0, 80 + 300 * panels.len().max(1) as u32)).into_drawing_area();
+    root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
+    let root = root.titled(title, ("sans-serif", 20)).map_err(|x| e(x.to_string()))?;
+    let (x_lo, x_hi) = span(panels.iter().flat_map(|(_, c)| c.iter().flat_map(|(_, p)| p.iter().map(|q| q.0))));
+    for ((y_label, curves), area) in panels.iter().zip(root.split_evenly((panels.len().max(1), 1))) {
+        let (lo, hi) = span(curves.iter().flat_map(|(_, p)| p.iter().map(|q| q.1)));
+        let mut chart = ChartBuilder::on(&area)
+            .margin(12)
+            .x_label_area_size(45)
+            .y_label_area_size(80)
+            .build_cartesian_2d(x_lo..x_hi, lo..hi)
+            .map_err(|x| e(x.to_string()))?;
+        axes(&mut chart, x_label, y_label, &e)?;
+        for (k, (label, pts)) in curves.iter().enumerate() {
+            let color = PALETTE[k % PALETTE.len()];
+            line(&mut chart, pts.clone(), color.stroke_width(2), label.clone(), &e)?;
+            chart.draw_series(thin(pts.clone()).into_iter().map(|p| Circle::new(p, 3, color.filled()))).map_err(|x| e(x.to_string()))?;
+        }
+        if curves.len() > 1 || curves.first().is_some_and(|c| !c.0.is_empty()) {
+            legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
+        }
+    }
+    root.present().map_err(|x| e(x.to_string()))
+}

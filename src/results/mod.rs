@@ -373,6 +373,10 @@ pub struct SteadyReport {
     /// pressure drops and the method's stated uncertainty (at the mean shell temperature).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub shell_side: Option<ShellSide>,
+    /// A sizing's outcome (`hxgrid size`), or for a rated case with a `[size]` table the
+    /// design margin against that target.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sizing: Option<crate::design::size::Sizing>,
     /// The lumped hand result.
     pub lumped: LumpedResult,
     /// Grid versus lumped.

@@ -18,7 +18,7 @@ pub use blocktri::BlockTridiagonal;
 pub const MAX_CELLS: usize = 10_000_000;
 
 pub use network::{solve_network, NetworkSolution, MAX_NETWORK_CELLS};
-pub use steady::{solve_steady, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
+pub use steady::{solve_steady, solve_steady_from, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 
 /// A small deterministic random generator for the linear-algebra tests (values in ±½).
 #[cfg(test)]

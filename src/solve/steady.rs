@@ -171,6 +171,13 @@ pub(crate) fn convergence_target(ex: &Exchanger, cells: usize, tolerance: f64) -
 
 /// Solve the steady state of `ex` on `settings.cells` cells.
 pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dyn Observer) -> Result<SteadySolution, SolveError> {
+    solve_steady_from(ex, settings, None, observer)
+}
+
+/// [`solve_steady`] started from `start` (the unknowns of a solution on the same number of
+/// cells, e.g. of a neighbouring design point) instead of the lumped estimate; a start of
+/// another size is ignored.
+pub fn solve_steady_from(ex: &Exchanger, settings: &SteadySettings, start: Option<&[Vector3<f64>]>, observer: &mut dyn Observer) -> Result<SteadySolution, SolveError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     let lay = Grid { arrangement: ex.arrangement, n, scheme: ex.scheme, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };
@@ -178,7 +185,10 @@ pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dy
         return Ok(unpack(&lay, dx, &vec![Vector3::new(t, t, t); lay.n], 0, 0.0));
     }
     let (scale, target) = convergence_target(ex, n, settings.tolerance);
-    let mut x = initial_guess(ex, &lay);
+    let mut x = match start {
+        Some(s) if s.len() == n && s.iter().all(|v| v.iter().all(|t| t.is_finite())) => s.to_vec(),
+        _ => initial_guess(ex, &lay),
+    };
     let mut r = vec![Vector3::zeros(); n];
     let mut step = vec![Vector3::zeros(); n];
     let mut trial = vec![Vector3::zeros(); n];

@@ -423,6 +423,7 @@ pub(crate) fn assemble(
         hot_pressure_drop_total_Pa: hot_total,
         cold_pressure_drop_total_Pa: cold_total,
         shell_side,
+        sizing: None,
         lumped,
         grid_vs_lumped,
         grid_error_estimate,

@@ -67,4 +67,7 @@ impl FilmCorrelation for CompactSurface {
     fn darcy_friction(&self, _: &Channel, reynolds: f64) -> Option<f64> {
         Some(4.0 * self.j_f(reynolds.max(1e-9)).1) // Fanning → Darcy
     }
+    fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
+        Some(super::film::StatedAccuracy { percent: 10.0, source: "common practice: j-factor test data (as in Kays & London) are good to about ±5–10 % [M]" })
+    }
 }

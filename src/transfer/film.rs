@@ -92,6 +92,70 @@ pub trait FilmCorrelation: Send + Sync + Debug {
     fn shell_rating(&self, _input: &FilmInput) -> Option<super::shell::ShellRating> {
         None
     }
+    /// The correlation's published accuracy on h (the default uncertainty of a Monte Carlo
+    /// study); None where none is stated (a user's fixed value).
+    fn stated_accuracy(&self) -> Option<StatedAccuracy> {
+        None
+    }
+}
+
+/// A correlation's stated accuracy: ± per cent on the film coefficient, and where that is
+/// stated.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StatedAccuracy {
+    /// ± %, taken as the half-width of a rectangular distribution.
+    pub percent: f64,
+    /// Where it is stated.
+    pub source: &'static str,
+}
+
+/// Another correlation with its film coefficient multiplied by `factor` (an uncertainty
+/// sample). Friction, ranges and names are the inner correlation's. For a finned surface the
+/// factor scales the effective coefficient (fin efficiency as at the unscaled h).
+#[derive(Debug, Clone)]
+pub struct ScaledFilm {
+    /// The correlation.
+    pub inner: std::sync::Arc<dyn FilmCorrelation>,
+    /// Multiplier on h.
+    pub factor: f64,
+}
+
+impl FilmCorrelation for ScaledFilm {
+    fn name(&self) -> &'static str {
+        self.inner.name()
+    }
+    fn film(&self, input: &FilmInput) -> FilmResult {
+        let mut r = self.inner.film(input);
+        r.h *= self.factor;
+        r
+    }
+    fn uses_wall_temperature(&self) -> bool {
+        self.inner.uses_wall_temperature()
+    }
+    fn validity(&self) -> String {
+        self.inner.validity()
+    }
+    fn bulk_property_range(&self, reynolds: f64) -> Option<(f64, f64)> {
+        self.inner.bulk_property_range(reynolds)
+    }
+    fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
+        self.inner.darcy_friction(channel, reynolds)
+    }
+    fn darcy_friction_at(&self, channel: &Channel, reynolds: f64, mu_ratio: f64) -> Option<f64> {
+        self.inner.darcy_friction_at(channel, reynolds, mu_ratio)
+    }
+    fn friction_in_range(&self, reynolds: f64) -> bool {
+        self.inner.friction_in_range(reynolds)
+    }
+    fn friction_validity(&self) -> Option<String> {
+        self.inner.friction_validity()
+    }
+    fn shell_rating(&self, input: &FilmInput) -> Option<super::shell::ShellRating> {
+        self.inner.shell_rating(input)
+    }
+    fn stated_accuracy(&self) -> Option<StatedAccuracy> {
+        self.inner.stated_accuracy()
+    }
 }
 
 /// A film coefficient the user measured or chose, used as given everywhere.

@@ -96,6 +96,9 @@ impl Gnielinski {
     }
 }
 
+/// Where Gnielinski's accuracy is stated.
+const GNIELINSKI_ACCURACY: &str = "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., §8.5: errors below 10 % with Gnielinski's correlation [M]";
+
 impl FilmCorrelation for Gnielinski {
     fn name(&self) -> &'static str {
         "gnielinski"
@@ -111,6 +114,9 @@ impl FilmCorrelation for Gnielinski {
     }
     fn validity(&self) -> String {
         "laminar Re < 2300; turbulent 10⁴ ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000 (Gnielinski 1976)".into()
+    }
+    fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
+        Some(super::film::StatedAccuracy { percent: 10.0, source: GNIELINSKI_ACCURACY })
     }
 }
 
@@ -295,5 +301,15 @@ impl FilmCorrelation for InternalFlow {
                 format!("{lam}; {name} from Re = 2300 as published, its range {own} ≤ Re, {rest}{gap}; no transition blend{ratios}")
             }
         }
+    }
+    fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
+        // The turbulent correlation's figure; a fully developed laminar Nu is exact for its
+        // idealisation but a real inlet and property variation add about as much.
+        let (percent, source) = match self.turbulent {
+            Turbulent::Gnielinski => (10.0, GNIELINSKI_ACCURACY),
+            Turbulent::DittusBoelter | Turbulent::SiederTate => (25.0, "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., §8.5: errors as large as 25 % with the Dittus–Boelter and Sieder–Tate equations [M]"),
+            Turbulent::Pitla => (20.0, "Pitla, Groll & Ramadhyani (2002), Int. J. Refrigeration 25, 887–895: most data within ±20 % [M]"),
+        };
+        Some(super::film::StatedAccuracy { percent, source })
     }
 }

@@ -15,7 +15,7 @@ pub mod shell;
 mod wall;
 
 pub use film::{
-    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski, InternalFlow, Laminar, Layout,
+    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski, InternalFlow, Laminar, Layout, ScaledFilm, StatedAccuracy,
     Transition, TubeBank, Turbulent, WallCorrection, Zukauskas,
 };
 pub use fin::Fin;

@@ -612,6 +612,9 @@ impl FilmCorrelation for BellDelaware {
             stated_uncertainty: BELL_DELAWARE_UNCERTAINTY,
         })
     }
+    fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
+        Some(super::film::StatedAccuracy { percent: 25.0, source: "Taborek, HEDH §3.3: Bell–Delaware h within ±15–25 % (the upper figure used)" })
+    }
 }
 
 /// Kern's method: Nu = 0.36 Re^0.55 Pr^⅓ (μ/μ_w)^0.14 on the equivalent diameter D_e, with
@@ -695,6 +698,9 @@ impl FilmCorrelation for Kern {
             shells: self.bundle.shells,
             stated_uncertainty: KERN_UNCERTAINTY,
         })
+    }
+    fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
+        Some(super::film::StatedAccuracy { percent: 50.0, source: "Taborek, HEDH §3.3: Kern's h off by −50 … +100 % (±50 % used; the high side is understated)" })
     }
 }
 
