@@ -401,7 +401,7 @@ fn sizing_failed(e: &hxgrid::design::size::SizeError) -> ExitCode {
     use hxgrid::design::size::SizeError;
     errln!("error: {e}.\nNo results were written; earlier results (if any) are untouched.");
     match e {
-        SizeError::Unreachable { .. } | SizeError::Insensitive { .. } => ExitCode::from(EXIT_UNREACHABLE),
+        SizeError::Unreachable(_) | SizeError::Insensitive { .. } => ExitCode::from(EXIT_UNREACHABLE),
         SizeError::Failed { solver: true, .. } => ExitCode::from(EXIT_SOLVER),
         SizeError::Failed { .. } => ExitCode::from(EXIT_INPUT),
     }
@@ -485,7 +485,8 @@ fn sweep(path: &Path, out: Option<PathBuf>, shard: Option<(usize, usize)>, quiet
         b.finish_and_clear();
     }
     let lines: Vec<String> = points.iter().map(sweep_line).collect();
-    let manifest = SweepManifest::new(&case.name, &case.source.sha256(), spec.combine, &spec.inputs, total, shard.map(|(index, count)| Shard { index, count }), &lines);
+    let manifest =
+        SweepManifest::new(&case.name, &case.source.sha256(), spec.combine, &spec.inputs, total, shard.map(|(index, count)| Shard { index, count }), &lines);
     let written = write_sweep(&dir, &manifest, &sweep_header(&spec.inputs), &lines);
     finish(written, quiet, || {
         outln!(
@@ -508,9 +509,10 @@ fn merge(shards: &[PathBuf], out: Option<PathBuf>) -> ExitCode {
     let dir = match out {
         Some(d) => d,
         None => {
-            let name = shards.first().and_then(|d| std::fs::read_to_string(d.join("sweep.json")).ok()).and_then(|t| {
-                serde_json::from_str::<hxgrid::output::design::SweepManifest>(&t).ok().map(|m| m.case).filter(|c| case::check_name(c).is_ok())
-            });
+            let name = shards
+                .first()
+                .and_then(|d| std::fs::read_to_string(d.join("sweep.json")).ok())
+                .and_then(|t| serde_json::from_str::<hxgrid::output::design::SweepManifest>(&t).ok().map(|m| m.case).filter(|c| case::check_name(c).is_ok()));
             match name {
                 Some(n) => Path::new("output").join(format!("{n}-sweep")),
                 None => {

@@ -127,7 +127,7 @@ fn targets_out_of_reach_are_refused_with_the_reachable_limit() {
     // reaches it, and the limit the search found is stated.
     let case = constant_case("[size]\nduty_W = 200000.0\nvary = \"length_m\"\n");
     match size(&case.source, case.design.size.as_ref().unwrap()) {
-        Err(e @ SizeError::Unreachable { .. }) => {
+        Err(e @ SizeError::Unreachable(_)) => {
             let m = e.to_string();
             assert!(m.contains("closest reachable") && m.contains("size.highest"), "{m}");
         }
@@ -184,9 +184,7 @@ fn four_shards_run_at_once_merge_into_the_unsharded_files_byte_for_byte() {
     let o = bin().arg("sweep").arg(&case).arg("--out").arg(&whole).arg("-q").output().unwrap();
     assert!(o.status.success(), "{}", text(&o));
     let children: Vec<_> = (1..=4)
-        .map(|k| {
-            bin().arg("sweep").arg(&case).arg("--shard").arg(format!("{k}/4")).arg("--out").arg(dir.join(format!("shard-{k}"))).arg("-q").spawn().unwrap()
-        })
+        .map(|k| bin().arg("sweep").arg(&case).arg("--shard").arg(format!("{k}/4")).arg("--out").arg(dir.join(format!("shard-{k}"))).arg("-q").spawn().unwrap())
         .collect();
     for mut c in children {
         assert!(c.wait().unwrap().success());

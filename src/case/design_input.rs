@@ -29,7 +29,8 @@ pub(super) fn design(c: &mut Checker, f: &CaseFile, text: &str) -> DesignSpec {
 }
 
 fn size(c: &mut Checker, s: &SizeFile, f: &CaseFile, text: &str) -> Option<SizeSpec> {
-    let targets: Vec<Target> = [s.duty_W.map(Target::Duty), s.hot_outlet_C.map(Target::HotOutlet), s.cold_outlet_C.map(Target::ColdOutlet)].into_iter().flatten().collect();
+    let targets: Vec<Target> =
+        [s.duty_W.map(Target::Duty), s.hot_outlet_C.map(Target::HotOutlet), s.cold_outlet_C.map(Target::ColdOutlet)].into_iter().flatten().collect();
     let target = match targets.as_slice() {
         [t] => *t,
         [] => {
@@ -49,7 +50,7 @@ fn size(c: &mut Checker, s: &SizeFile, f: &CaseFile, text: &str) -> Option<SizeS
     match target {
         _ if !goal.is_finite() => c.fail(&key, format!("{} is not a finite number", num(goal))),
         Target::Duty(q) if q <= 0.0 => c.fail(&key, format!("{} W is not valid: give a positive duty", num(q))),
-        Target::HotOutlet(t) | Target::ColdOutlet(t) if !inlet_free && !(tc < t && t < th) => c.fail(
+        Target::HotOutlet(t) | Target::ColdOutlet(t) if !(inlet_free || (tc < t && t < th)) => c.fail(
             &key,
             format!(
                 "{} °C is outside the inlet span {} … {} °C: no exchanger takes either stream beyond the other's inlet (second law); the reachable outlets lie strictly between the inlets",
@@ -62,7 +63,10 @@ fn size(c: &mut Checker, s: &SizeFile, f: &CaseFile, text: &str) -> Option<SizeS
     }
     let start = key_of(c, "size.vary", text, &s.vary)?;
     if !(start.value.is_finite() && start.value > 0.0) {
-        c.fail("size.vary", format!("{} = {} in the case: the free input must be a positive number (sizing searches by factors of it)", quote(&s.vary, 60), num(start.value)));
+        c.fail(
+            "size.vary",
+            format!("{} = {} in the case: the free input must be a positive number (sizing searches by factors of it)", quote(&s.vary, 60), num(start.value)),
+        );
         return None;
     }
     let lowest = s.lowest.unwrap_or(if start.whole { 1.0 } else { start.value / 100.0 });
@@ -136,7 +140,14 @@ fn sweep(c: &mut Checker, s: &SweepFile, text: &str) -> Option<SweepSpec> {
         }
         if kv.whole {
             if let Some(bad) = values.iter().find(|v| v.fract() != 0.0) {
-                c.fail(&at("values"), format!("{} is not a whole number, and {} takes whole numbers: choose whole values (or a start/stop/count that gives them)", num(*bad), input.key));
+                c.fail(
+                    &at("values"),
+                    format!(
+                        "{} is not a whole number, and {} takes whole numbers: choose whole values (or a start/stop/count that gives them)",
+                        num(*bad),
+                        input.key
+                    ),
+                );
                 continue;
             }
         }
@@ -189,7 +200,13 @@ fn uncertainty(c: &mut Checker, u: &UncertaintyFile) -> UncertaintySpec {
         seed: seed.max(0) as u64,
         film_percent: [pct("hot_film_percent", u.hot_film_percent, 100.0, "%"), pct("cold_film_percent", u.cold_film_percent, 100.0, "%")],
         fouling_percent: [pct("hot_fouling_percent", u.hot_fouling_percent, 100.0, "%"), pct("cold_fouling_percent", u.cold_fouling_percent, 100.0, "%")],
-        mass_flow_percent: [pct("hot_mass_flow_percent", u.hot_mass_flow_percent, 100.0, "%"), pct("cold_mass_flow_percent", u.cold_mass_flow_percent, 100.0, "%")],
-        inlet_k: [pct("hot_inlet_temperature_K", u.hot_inlet_temperature_K, 100.0, "K"), pct("cold_inlet_temperature_K", u.cold_inlet_temperature_K, 100.0, "K")],
+        mass_flow_percent: [
+            pct("hot_mass_flow_percent", u.hot_mass_flow_percent, 100.0, "%"),
+            pct("cold_mass_flow_percent", u.cold_mass_flow_percent, 100.0, "%"),
+        ],
+        inlet_k: [
+            pct("hot_inlet_temperature_K", u.hot_inlet_temperature_K, 100.0, "K"),
+            pct("cold_inlet_temperature_K", u.cold_inlet_temperature_K, 100.0, "K"),
+        ],
     }
 }

@@ -217,7 +217,11 @@ pub struct Evaluation {
 
 /// Solve `ex` on its grid (thermal solution only: no grid-error solve, no pressure march),
 /// from `warm` where it fits.
-pub fn evaluate(ex: &crate::Exchanger, settings: &crate::solve::SteadySettings, warm: Option<&[nalgebra::Vector3<f64>]>) -> Result<Evaluation, crate::solve::SolveError> {
+pub fn evaluate(
+    ex: &crate::Exchanger,
+    settings: &crate::solve::SteadySettings,
+    warm: Option<&[nalgebra::Vector3<f64>]>,
+) -> Result<Evaluation, crate::solve::SolveError> {
     use crate::solve::{solve_network, solve_steady_from, SilentObserver};
     let area_m2 = ex.reference_area_per_length_m * ex.length_m;
     match ex.arrangement.layout() {

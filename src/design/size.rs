@@ -77,27 +77,32 @@ pub struct Sizing {
     pub overdesign_percent: Option<f64>,
 }
 
+/// A target beyond reach: the closest value reached, where, and why the search stopped.
+#[derive(Debug, Clone, thiserror::Error)]
+#[error("{target} = {goal} {unit} cannot be reached by varying {vary}: the closest reachable is {limit} {unit} at {vary} = {at}{why}")]
+pub struct Unreachable {
+    /// Target key.
+    pub target: &'static str,
+    /// Goal as text.
+    pub goal: String,
+    /// Unit.
+    pub unit: &'static str,
+    /// The free input.
+    pub vary: String,
+    /// The reachable limit, as text.
+    pub limit: String,
+    /// Where it is reached, as text.
+    pub at: String,
+    /// Why the search could not go further.
+    pub why: String,
+}
+
 /// Why a sizing stopped without a value.
 #[derive(Debug, Clone, thiserror::Error)]
 pub enum SizeError {
     /// The target cannot be reached within the bounds or the case's valid range.
-    #[error("{target} = {goal} {unit} cannot be reached by varying {vary}: the closest reachable is {limit} {unit} at {vary} = {at}{why}")]
-    Unreachable {
-        /// Target key.
-        target: &'static str,
-        /// Goal as text.
-        goal: String,
-        /// Unit.
-        unit: &'static str,
-        /// The free input.
-        vary: String,
-        /// The reachable limit, as text.
-        limit: String,
-        /// Where it is reached, as text.
-        at: String,
-        /// Why the search could not go further.
-        why: String,
-    },
+    #[error("{0}")]
+    Unreachable(Box<Unreachable>),
     /// The target does not change with the input.
     #[error("{target} does not change with {vary} (from {} to {} {unit} between {vary} = {a} and {b}): choose an input that affects it", num(*from), num(*to))]
     Insensitive {
@@ -181,14 +186,16 @@ pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeErro
     let tol = target_tolerance(&t);
     let v0 = spec.start.value;
     let (g0, area0) = ev.eval(v0).map_err(|e| failed(&spec.vary, v0, e))?;
-    let unreachable = |limit_g: f64, at: f64, why: String| SizeError::Unreachable {
-        target: t.key(),
-        goal: num(t.goal()),
-        unit: t.unit(),
-        vary: spec.vary.clone(),
-        limit: num(limit_g + t.goal()),
-        at: num(at),
-        why,
+    let unreachable = |limit_g: f64, at: f64, why: String| {
+        SizeError::Unreachable(Box::new(Unreachable {
+            target: t.key(),
+            goal: num(t.goal()),
+            unit: t.unit(),
+            vary: spec.vary.clone(),
+            limit: num(limit_g + t.goal()),
+            at: num(at),
+            why,
+        }))
     };
     let (a, b) = if g0.abs() <= tol && !whole {
         ((v0, g0), (v0, g0))
@@ -214,7 +221,15 @@ pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeErro
         let bound = if up { spec.highest } else { spec.lowest };
         let next_of = |v: f64| {
             let n = if up { v * factor } else { v / factor };
-            let n = if whole { if up { n.round().max(v + 1.0) } else { n.round().min(v - 1.0) } } else { n };
+            let n = if whole {
+                if up {
+                    n.round().max(v + 1.0)
+                } else {
+                    n.round().min(v - 1.0)
+                }
+            } else {
+                n
+            };
             if up {
                 n.min(bound)
             } else {
@@ -281,15 +296,8 @@ fn finish(ev: &mut Evaluator, spec: &SizeSpec, (a, b): ((f64, f64), (f64, f64)),
     } else if a.0 == b.0 {
         (a.0, a.1, None)
     } else {
-        let (u, g, _) = super::root::brent(
-            |u: f64| ev.eval(u.exp()).map(|r| r.0).map_err(|e| (u.exp(), e)),
-            (a.0.ln(), a.1),
-            (b.0.ln(), b.1),
-            1e-12,
-            tol,
-            100,
-        )
-        .map_err(|(v, e)| failed(&spec.vary, v, e))?;
+        let (u, g, _) = super::root::brent(|u: f64| ev.eval(u.exp()).map(|r| r.0).map_err(|e| (u.exp(), e)), (a.0.ln(), a.1), (b.0.ln(), b.1), 1e-12, tol, 100)
+            .map_err(|(v, e)| failed(&spec.vary, v, e))?;
         (u.exp(), g, None)
     };
     // The final case, and its area (re-evaluated so the warm start and the outcome agree).

@@ -257,11 +257,13 @@ pub struct Contribution {
     pub cold_outlet_share_percent: f64,
 }
 
+/// A result's name and how to read it from the key quantities.
+type Pick = (&'static str, fn(&KeyQuantities) -> f64);
+
 /// Percentiles and contributions from the samples; contributions sorted by the duty share.
 pub fn summarise(nominal: KeyQuantities, grid_error: Option<KeyQuantities>, factors: &[Factor], samples: &[Sample]) -> (Vec<Spread>, Vec<Contribution>) {
     let ok: Vec<(&[f64], KeyQuantities)> = samples.iter().filter_map(|s| s.outcome.as_ref().ok().map(|q| (s.u.as_slice(), *q))).collect();
-    let pick: [(&'static str, fn(&KeyQuantities) -> f64); 3] =
-        [("duty_W", |q| q.duty_w), ("hot_outlet_C", |q| q.hot_outlet_c), ("cold_outlet_C", |q| q.cold_outlet_c)];
+    let pick: [Pick; 3] = [("duty_W", |q| q.duty_w), ("hot_outlet_C", |q| q.hot_outlet_c), ("cold_outlet_C", |q| q.cold_outlet_c)];
     let series: Vec<Vec<f64>> = pick.iter().map(|(_, f)| ok.iter().map(|(_, q)| f(q)).collect()).collect();
     let spreads = pick
         .iter()

@@ -195,9 +195,21 @@ pub fn sizing(s: &crate::design::size::Sizing) -> String {
     let _ = writeln!(out, "\nsizing: {} = {} {unit} by varying {}", s.target, num(s.goal), s.vary);
     let found = if s.whole_number { format!("{} (the smallest whole size that meets the target)", num(s.value)) } else { format!("{:.6}", s.value) };
     let _ = writeln!(out, "  {} = {found}   (case file: {})", s.vary, num(s.case_value));
-    let _ = writeln!(out, "  achieved {} = {:.6} {unit} (achieved − goal {:+.3e}; continuous tolerance {:.1e})", s.target, s.achieved, s.achieved_minus_goal, s.tolerance);
+    let _ = writeln!(
+        out,
+        "  achieved {} = {:.6} {unit} (achieved − goal {:+.3e}; continuous tolerance {:.1e})",
+        s.target, s.achieved, s.achieved_minus_goal, s.tolerance
+    );
     if let Some(n) = &s.next_size_misses {
-        let _ = writeln!(out, "  next size down, {} = {}: {} = {:.6} {unit} (misses by {:+.3e})", s.vary, num(n.value), s.target, n.achieved, n.achieved_minus_goal);
+        let _ = writeln!(
+            out,
+            "  next size down, {} = {}: {} = {:.6} {unit} (misses by {:+.3e})",
+            s.vary,
+            num(n.value),
+            s.target,
+            n.achieved,
+            n.achieved_minus_goal
+        );
     }
     let _ = writeln!(out, "  {} complete grid solves, {} Newton iterations in all (warm-started)", s.evaluations, s.newton_iterations);
     match s.overdesign_percent {

@@ -227,17 +227,33 @@ fn sweep_plot(path: &Path, m: &SweepManifest, csv: &str) -> Result<(), OutputErr
         }
     }
     groups.truncate(8);
-    let curve = |k: usize, scale: f64| -> Vec<crate::output::svg::StudyCurve> {
-        groups.iter().map(|(label, rows)| (label.clone(), rows.iter().map(|r| (r[0], r[k] * scale)).collect())).collect()
+    let single = groups.len() == 1 && groups[0].0.is_empty();
+    let curves = |k: usize, scale: f64, width: u32, labelled: bool| -> Vec<crate::output::svg::StudyCurve> {
+        groups
+            .iter()
+            .enumerate()
+            .map(|(g, (label, rows))| {
+                let label = if !labelled {
+                    String::new()
+                } else if single {
+                    "grid".to_string()
+                } else {
+                    label.clone()
+                };
+                (label, g, width, rows.iter().map(|r| (r[0], r[k] * scale)).collect())
+            })
+            .collect()
     };
-    let mut outlets = Vec::new();
-    for (k, which) in [(2, "hot outlet"), (3, "cold outlet")] {
-        for (label, pts) in curve(k, 1.0) {
-            outlets.push((if label.is_empty() { which.to_string() } else { format!("{which}, {label}") }, pts));
-        }
+    let mut duty = curves(1, 1e-3, 2, !single);
+    if single {
+        duty[0].0.clear();
     }
+    // Outlets: the hot outlet thick and labelled, the cold outlet thin in the same colour.
+    let mut outlets = curves(2, 1.0, 3, !single);
+    outlets.extend(curves(3, 1.0, 1, false));
     let title = format!("{}: sweep of {} ({} points)", m.case, m.inputs[0].key, m.points);
-    crate::output::svg::study_panels(path, &title, &m.inputs[0].key, &[("duty (kW)".to_string(), curve(1, 1e-3)), ("outlet temperature (°C)".to_string(), outlets)])
+    let panels = [("duty (kW)".to_string(), duty), ("outlets (°C): hot thick, cold thin".to_string(), outlets)];
+    crate::output::svg::study_panels(path, &title, &m.inputs[0].key, &panels)
 }
 
 /// Why shard folders could not be merged.
@@ -255,7 +271,8 @@ pub enum MergeError {
 fn read_shard(dir: &Path) -> Result<(SweepManifest, String, Vec<String>), MergeError> {
     let bad = |what: String| MergeError::Input(format!("{}: {what}", dir.display()));
     let read = |name: &str| crate::case::read::text_file(&dir.join(name), 4 << 30, None).map_err(|e| bad(format!("cannot read {name}: {e}")));
-    let manifest: SweepManifest = serde_json::from_str(&read("sweep.json")?).map_err(|e| bad(format!("sweep.json is not a sweep manifest hxgrid wrote: {e}")))?;
+    let manifest: SweepManifest =
+        serde_json::from_str(&read("sweep.json")?).map_err(|e| bad(format!("sweep.json is not a sweep manifest hxgrid wrote: {e}")))?;
     let csv = read("sweep.csv")?;
     let mut lines = csv.lines();
     let header = lines.next().ok_or_else(|| bad("sweep.csv is empty".into()))?.to_string();
@@ -279,9 +296,14 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>, MergeError> {
     };
     let mut seen = vec![false; count];
     for (d, (m, h, _)) in &shards {
-        let same = m.case == first.case && m.input_sha256 == first.input_sha256 && m.inputs == first.inputs && m.combine == first.combine && m.points == first.points;
+        let same =
+            m.case == first.case && m.input_sha256 == first.input_sha256 && m.inputs == first.inputs && m.combine == first.combine && m.points == first.points;
         if !same || *h != header {
-            return Err(MergeError::Input(format!("{} is a shard of another sweep (its case file, inputs or hxgrid version differ from {}'s)", d.display(), first_dir.display())));
+            return Err(MergeError::Input(format!(
+                "{} is a shard of another sweep (its case file, inputs or hxgrid version differ from {}'s)",
+                d.display(),
+                first_dir.display()
+            )));
         }
         match m.shard {
             Some(Shard { index, count: n }) if n == count && (1..=n).contains(&index) => {
@@ -292,7 +314,13 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>, MergeError> {
             _ => return Err(MergeError::Input(format!("{} is not a shard of {count} (sweep.json's shard differs)", d.display()))),
         }
         if m.hxgrid_version != first.hxgrid_version {
-            return Err(MergeError::Input(format!("{} was written by hxgrid {} and {} by {}: rerun the shards with one version", d.display(), m.hxgrid_version, first_dir.display(), first.hxgrid_version)));
+            return Err(MergeError::Input(format!(
+                "{} was written by hxgrid {} and {} by {}: rerun the shards with one version",
+                d.display(),
+                m.hxgrid_version,
+                first_dir.display(),
+                first.hxgrid_version
+            )));
         }
     }
     let missing: Vec<String> = seen.iter().enumerate().filter(|(_, s)| !**s).map(|(i, _)| format!("{}/{count}", i + 1)).collect();
@@ -302,14 +330,22 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>, MergeError> {
     let mut rows: Vec<(usize, String)> = Vec::with_capacity(first.points);
     for (d, (_, _, lines)) in &shards {
         for l in lines {
-            let n: usize = l.split(',').next().and_then(|v| v.parse().ok()).ok_or_else(|| MergeError::Input(format!("{}: a row of sweep.csv has no point number", d.display())))?;
+            let n: usize = l
+                .split(',')
+                .next()
+                .and_then(|v| v.parse().ok())
+                .ok_or_else(|| MergeError::Input(format!("{}: a row of sweep.csv has no point number", d.display())))?;
             rows.push((n, l.clone()));
         }
     }
     rows.sort_by_key(|r| r.0);
     let complete = rows.len() == first.points && rows.iter().enumerate().all(|(i, r)| r.0 == i + 1);
     if !complete {
-        return Err(MergeError::Input(format!("the shards hold {} rows for a sweep of {} points (a point missing or repeated): rerun the incomplete shard", rows.len(), first.points)));
+        return Err(MergeError::Input(format!(
+            "the shards hold {} rows for a sweep of {} points (a point missing or repeated): rerun the incomplete shard",
+            rows.len(),
+            first.points
+        )));
     }
     let lines: Vec<String> = rows.into_iter().map(|r| r.1).collect();
     let manifest = SweepManifest { shard: None, points_in_file: lines.len(), points_failed: failed(&lines, first.inputs.len()), ..first };

@@ -401,11 +401,31 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
     root.present().map_err(|x| e(x.to_string()))
 }
 
-/// One curve of a study plot: label and points.
-pub type StudyCurve = (String, Vec<(f64, f64)>);
+/// One curve of a study plot: label (empty: not in the legend), colour index, line width
+/// and points.
+pub type StudyCurve = (String, usize, u32, Vec<(f64, f64)>);
+
+/// The corner of a panel holding the fewest points, for the legend.
+fn emptiest_corner(curves: &[StudyCurve], (x0, x1): (f64, f64), (y0, y1): (f64, f64)) -> SeriesLabelPosition {
+    let mut count = [0usize; 4];
+    for (_, _, _, pts) in curves {
+        for &(x, y) in pts {
+            let right = (x - x0) / (x1 - x0) > 0.5;
+            let upper = (y - y0) / (y1 - y0) > 0.5;
+            count[usize::from(upper) * 2 + usize::from(right)] += 1;
+        }
+    }
+    let best = (0..4).min_by_key(|&k| (count[k], [3, 2, 1, 0][k])).unwrap_or(3);
+    match best {
+        0 => SeriesLabelPosition::LowerLeft,
+        1 => SeriesLabelPosition::LowerRight,
+        2 => SeriesLabelPosition::UpperLeft,
+        _ => SeriesLabelPosition::UpperRight,
+    }
+}
 
 /// Stacked panels of curves against one input (sweeps): each panel a y label and its curves;
-/// points are drawn as markers joined by lines.
+/// points are drawn as markers joined by lines; the legend sits in the emptiest corner.
 pub fn study_panels(path: &Path, title: &str, x_label: &str, panels: &[(String, Vec<StudyCurve>)]) -> Result<(), OutputError> {
     const PALETTE: [RGBColor; 8] = [
         RGBColor(31, 119, 180),
@@ -421,9 +441,9 @@ pub fn study_panels(path: &Path, title: &str, x_label: &str, panels: &[(String, 
     let root = SVGBackend::new(path, (SIZE.0, 80 + 300 * panels.len().max(1) as u32)).into_drawing_area();
     root.fill(&WHITE).map_err(|x| e(x.to_string()))?;
     let root = root.titled(title, ("sans-serif", 20)).map_err(|x| e(x.to_string()))?;
-    let (x_lo, x_hi) = span(panels.iter().flat_map(|(_, c)| c.iter().flat_map(|(_, p)| p.iter().map(|q| q.0))));
+    let (x_lo, x_hi) = span(panels.iter().flat_map(|(_, c)| c.iter().flat_map(|c| c.3.iter().map(|q| q.0))));
     for ((y_label, curves), area) in panels.iter().zip(root.split_evenly((panels.len().max(1), 1))) {
-        let (lo, hi) = span(curves.iter().flat_map(|(_, p)| p.iter().map(|q| q.1)));
+        let (lo, hi) = span(curves.iter().flat_map(|c| c.3.iter().map(|q| q.1)));
         let mut chart = ChartBuilder::on(&area)
             .margin(12)
             .x_label_area_size(45)
@@ -431,13 +451,17 @@ pub fn study_panels(path: &Path, title: &str, x_label: &str, panels: &[(String, 
             .build_cartesian_2d(x_lo..x_hi, lo..hi)
             .map_err(|x| e(x.to_string()))?;
         axes(&mut chart, x_label, y_label, &e)?;
-        for (k, (label, pts)) in curves.iter().enumerate() {
+        for (label, k, width, pts) in curves {
             let color = PALETTE[k % PALETTE.len()];
-            line(&mut chart, pts.clone(), color.stroke_width(2), label.clone(), &e)?;
-            chart.draw_series(thin(pts.clone()).into_iter().map(|p| Circle::new(p, 3, color.filled()))).map_err(|x| e(x.to_string()))?;
+            let series = chart.draw_series(LineSeries::new(thin(pts.clone()), color.stroke_width(*width))).map_err(|x| e(x.to_string()))?;
+            if !label.is_empty() {
+                let w = *width;
+                series.label(label.clone()).legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], color.stroke_width(w)));
+            }
+            chart.draw_series(thin(pts.clone()).into_iter().map(|p| Circle::new(p, 2 + width.min(&2), color.filled()))).map_err(|x| e(x.to_string()))?;
         }
-        if curves.len() > 1 || curves.first().is_some_and(|c| !c.0.is_empty()) {
-            legend(&mut chart, SeriesLabelPosition::UpperRight, 13, &e)?;
+        if curves.iter().any(|c| !c.0.is_empty()) {
+            legend(&mut chart, emptiest_corner(curves, (x_lo, x_hi), (lo, hi)), 13, &e)?;
         }
     }
     root.present().map_err(|x| e(x.to_string()))

@@ -177,7 +177,12 @@ pub fn solve_steady(ex: &Exchanger, settings: &SteadySettings, observer: &mut dy
 /// [`solve_steady`] started from `start` (the unknowns of a solution on the same number of
 /// cells, e.g. of a neighbouring design point) instead of the lumped estimate; a start of
 /// another size is ignored.
-pub fn solve_steady_from(ex: &Exchanger, settings: &SteadySettings, start: Option<&[Vector3<f64>]>, observer: &mut dyn Observer) -> Result<SteadySolution, SolveError> {
+pub fn solve_steady_from(
+    ex: &Exchanger,
+    settings: &SteadySettings,
+    start: Option<&[Vector3<f64>]>,
+    observer: &mut dyn Observer,
+) -> Result<SteadySolution, SolveError> {
     let n = settings.cells.max(1);
     let dx = ex.length_m / n as f64;
     let lay = Grid { arrangement: ex.arrangement, n, scheme: ex.scheme, hot_in_c: ex.hot.inlet_c, cold_in_c: ex.cold.inlet_c };

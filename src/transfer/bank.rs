@@ -214,7 +214,10 @@ impl FilmCorrelation for Zukauskas {
         Some(b.drag_per_row(reynolds, mu_ratio) * b.velocity_ratio().powi(2) * b.outer_diameter_m / b.longitudinal_pitch_m)
     }
     fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
-        Some(super::film::StatedAccuracy { percent: 15.0, source: "Žukauskas (1972), Adv. Heat Transfer 8: tube-bank correlation within ±15 % of the data [M]" })
+        Some(super::film::StatedAccuracy {
+            percent: 15.0,
+            source: "Žukauskas (1972), Adv. Heat Transfer 8: tube-bank correlation within ±15 % of the data [M]",
+        })
     }
 }
 

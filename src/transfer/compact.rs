@@ -68,6 +68,8 @@ impl FilmCorrelation for CompactSurface {
         Some(4.0 * self.j_f(reynolds.max(1e-9)).1) // Fanning → Darcy
     }
     fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
-        Some(super::film::StatedAccuracy { percent: 10.0, source: "common practice: j-factor test data (as in Kays & London) are good to about ±5–10 % [M]" })
+        Some(super::film::StatedAccuracy {
+            percent: 10.0, source: "common practice: j-factor test data (as in Kays & London) are good to about ±5–10 % [M]"
+        })
     }
 }

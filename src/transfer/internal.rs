@@ -97,7 +97,8 @@ impl Gnielinski {
 }
 
 /// Where Gnielinski's accuracy is stated.
-const GNIELINSKI_ACCURACY: &str = "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., §8.5: errors below 10 % with Gnielinski's correlation [M]";
+const GNIELINSKI_ACCURACY: &str =
+    "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., §8.5: errors below 10 % with Gnielinski's correlation [M]";
 
 impl FilmCorrelation for Gnielinski {
     fn name(&self) -> &'static str {

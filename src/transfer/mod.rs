@@ -15,8 +15,8 @@ pub mod shell;
 mod wall;
 
 pub use film::{
-    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski, InternalFlow, Laminar, Layout, ScaledFilm, StatedAccuracy,
-    Transition, TubeBank, Turbulent, WallCorrection, Zukauskas,
+    darcy_petukhov, gnielinski_nusselt, CompactSurface, FilmCorrelation, FilmInput, FilmResult, FixedFilm, Gnielinski, InternalFlow, Laminar, Layout,
+    ScaledFilm, StatedAccuracy, Transition, TubeBank, Turbulent, WallCorrection, Zukauskas,
 };
 pub use fin::Fin;
 pub use shell::{BellDelaware, Kern, PitchLayout, ShellBundle};

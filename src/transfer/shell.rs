@@ -700,7 +700,10 @@ impl FilmCorrelation for Kern {
         })
     }
     fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
-        Some(super::film::StatedAccuracy { percent: 50.0, source: "Taborek, HEDH §3.3: Kern's h off by −50 … +100 % (±50 % used; the high side is understated)" })
+        Some(super::film::StatedAccuracy {
+            percent: 50.0,
+            source: "Taborek, HEDH §3.3: Kern's h off by −50 … +100 % (±50 % used; the high side is understated)",
+        })
     }
 }
 
