@@ -522,6 +522,11 @@ fn merge(shards: &[PathBuf], out: Option<PathBuf>) -> ExitCode {
             }
         }
     };
+    let same = |a: &Path, b: &Path| matches!((a.canonicalize(), b.canonicalize()), (Ok(x), Ok(y)) if x == y);
+    if let Some(s) = shards.iter().find(|s| same(s, &dir)) {
+        errln!("error: --out {} is one of the shard folders being merged: choose another folder, so the shards stay as they are", s.display());
+        return ExitCode::from(EXIT_INPUT);
+    }
     if let Err(code) = destination_ok(&dir) {
         return code;
     }

@@ -204,6 +204,11 @@ fn four_shards_run_at_once_merge_into_the_unsharded_files_byte_for_byte() {
     assert_eq!(o.status.code(), Some(3));
     assert!(text(&o).contains("3/4"), "{}", text(&o));
     assert!(!dir.join("partial").exists());
+    // Merging into one of the shard folders is refused; the shard stays as it was.
+    let before = std::fs::read(dir.join("shard-2/sweep.csv")).unwrap();
+    let o = bin().arg("merge").args((1..=4).map(|k| dir.join(format!("shard-{k}")))).arg("--out").arg(dir.join("shard-2")).output().unwrap();
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    assert_eq!(std::fs::read(dir.join("shard-2/sweep.csv")).unwrap(), before);
 }
 
 #[test]
@@ -255,4 +260,25 @@ fn uncertainty_command_is_reproducible_and_its_shares_add_up() {
     let film = u["inputs"].as_array().unwrap().iter().find(|f| f["key"] == "hot_film_percent").unwrap();
     assert_eq!(film["half_width"], 10.0);
     assert!(film["source"].as_str().unwrap().contains("Incropera"));
+}
+
+#[test]
+fn whole_sizes_skip_values_that_make_no_valid_exchanger() {
+    // Tubes must divide into the 2 tube passes: an odd count is not a size. The size found
+    // and its neighbour are both valid (even), one meets 45 °C and the other misses.
+    let base = demo_text("shell-and-tube-water-cooler.toml");
+    let case = parse(&format!("{base}\n[size]\nhot_outlet_C = 45.0\nvary = \"geometry.tube_count\"\n"));
+    let (s, _) = size(&case.source, case.design.size.as_ref().unwrap()).unwrap();
+    let n = s.next_size_misses.as_ref().unwrap();
+    assert_eq!(s.value % 2.0, 0.0, "{}", s.value);
+    assert_eq!(n.value, s.value - 2.0);
+    let rate = |tubes: f64| {
+        let c = parse(&base.replace("tube_count = 124", &format!("tube_count = {tubes}")));
+        hxgrid::rate(&c.name, &c.build(), &c.solver).unwrap().hot_outlet_C
+    };
+    assert!(rate(s.value) <= 45.0 && rate(n.value) > 45.0);
+    // 40 °C would need more tubes than the bundle holds: refused, with the reason.
+    let case = parse(&format!("{base}\n[size]\nhot_outlet_C = 40.0\nvary = \"geometry.tube_count\"\n"));
+    let e = size(&case.source, case.design.size.as_ref().unwrap()).unwrap_err().to_string();
+    assert!(e.contains("closest reachable") && e.contains("need more room"), "{e}");
 }

@@ -29,7 +29,8 @@ pub fn target_tolerance(t: &Target) -> f64 {
     }
 }
 
-/// A whole-number neighbour of the size found: the next smaller size, which misses.
+/// A whole-number neighbour of the size found: the next valid size towards missing the
+/// target, which misses it.
 #[derive(Debug, Clone, Serialize)]
 pub struct Neighbour {
     /// The input's value.
@@ -123,7 +124,7 @@ pub enum SizeError {
     },
     /// An evaluation failed where the case must be valid (at its own value, or inside the
     /// bracket).
-    #[error("sizing stopped: with {vary} = {value} the case {what}: {error}")]
+    #[error("sizing stopped: with {vary} = {value} the case {what}: {error}{}", if *solver { "" } else { ". Sizing needs a valid case at the values it tries: where only some values are valid (a shell's baffle pitch fixes its length), vary another key (for a shell, geometry.tube_count or geometry.baffle_spacing_m)" })]
     Failed {
         /// The free input.
         vary: String,
@@ -167,6 +168,32 @@ impl Evaluator<'_> {
         }
         Ok((self.spec.target.of(&e.q) - self.spec.target.goal(), e.area_m2))
     }
+
+    /// (value used, target − goal) at `v` or, for a whole number that makes an invalid case
+    /// (tubes that do not divide into the passes), at the nearest valid whole number within
+    /// [lo, hi] (at most 16 away). Continuous values are evaluated as given.
+    fn eval_near(&mut self, v: f64, lo: f64, hi: f64) -> Result<(f64, f64), PointError> {
+        if !self.spec.start.whole {
+            return self.eval(v).map(|r| (v, r.0));
+        }
+        let (lo, hi) = (lo.min(hi), lo.max(hi));
+        let mut first: Option<PointError> = None;
+        for k in 0..=32_u32 {
+            let offset = if k % 2 == 0 { (k / 2) as f64 } else { -(k.div_ceil(2) as f64) };
+            let c = (v + offset).round();
+            if c < lo || c > hi || c < 1.0 {
+                continue;
+            }
+            match self.eval(c) {
+                Ok((g, _)) => return Ok((c, g)),
+                Err(e @ PointError::Input(_)) => {
+                    first.get_or_insert(e);
+                }
+                Err(e) => return Err(e),
+            }
+        }
+        Err(first.unwrap_or_else(|| PointError::Input(format!("no valid whole value of {} between {} and {}", self.spec.vary, num(lo), num(hi)))))
+    }
 }
 
 fn failed(vary: &str, v: f64, e: PointError) -> SizeError {
@@ -203,7 +230,8 @@ pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeErro
         // The slope's sign from a small step inside the bounds.
         let step = if whole { 1.0 } else { 0.25 * v0 };
         let v1 = if v0 + step <= spec.highest { v0 + step } else { (v0 - step).max(spec.lowest) };
-        let (g1, _) = ev.eval(v1).map_err(|e| failed(&spec.vary, v1, e))?;
+        let (lo1, hi1) = if v1 > v0 { (v1, spec.highest) } else { (spec.lowest, v1) };
+        let (v1, g1) = ev.eval_near(v1, lo1, hi1).map_err(|e| failed(&spec.vary, v1, e))?;
         if (g1 - g0).abs() <= 1e-3 * tol || v1 == v0 {
             return Err(SizeError::Insensitive {
                 target: t.key(),
@@ -243,28 +271,29 @@ pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeErro
                 return Err(unreachable(last.1, last.0, format!(" (the search bound size.{side}; widen it if a larger range is meaningful)")));
             }
             let next = next_of(last.0);
-            match ev.eval(next) {
-                Ok((g, _)) if g.signum() != last.1.signum() || g == 0.0 => break (last, (next, g)),
-                Ok((g, _)) => last = (next, g),
+            let (lo_n, hi_n) = if up { (last.0 + 1.0, bound) } else { (bound, last.0 - 1.0) };
+            match ev.eval_near(next, lo_n, hi_n) {
+                Ok((next, g)) if g.signum() != last.1.signum() || g == 0.0 => break (last, (next, g)),
+                Ok((next, g)) => last = (next, g),
                 Err(e) => {
                     // Find how far the case stays valid and solvable, then decide.
+                    // The reason given is the one at the first failing value: nearer values
+                    // may fail for a lesser reason (an odd tube count) on the way.
                     let (mut good, mut bad) = (last, next);
-                    let mut reason = e.to_string();
+                    let reason = e.to_string();
                     for _ in 0..8 {
                         let mid = if whole { ((good.0 + bad) / 2.0).round() } else { (good.0 * bad).sqrt() };
                         if mid == good.0 || mid == bad {
                             break;
                         }
-                        match ev.eval(mid) {
-                            Ok((g, _)) if g.signum() != good.1.signum() => return finish(&mut ev, spec, (good, (mid, g)), v0, area0),
-                            Ok((g, _)) => good = (mid, g),
-                            Err(e) => {
-                                bad = mid;
-                                reason = e.to_string();
-                            }
+                        let inside = if whole { (good.0.min(bad) + 1.0, good.0.max(bad) - 1.0) } else { (mid, mid) };
+                        match ev.eval_near(mid, inside.0, inside.1) {
+                            Ok((mid, g)) if g.signum() != good.1.signum() => return finish(&mut ev, spec, (good, (mid, g)), v0, area0),
+                            Ok((mid, g)) => good = (mid, g),
+                            Err(_) => bad = mid,
                         }
                     }
-                    return Err(unreachable(good.1, good.0, format!(" (with {} = {} the case fails: {reason})", spec.vary, num(bad))));
+                    return Err(unreachable(good.1, good.0, format!(" (with {} = {} the case fails: {reason})", spec.vary, num(next))));
                 }
             }
         }
@@ -283,7 +312,13 @@ fn finish(ev: &mut Evaluator, spec: &SizeSpec, (a, b): ((f64, f64), (f64, f64)),
         let (mut a, mut b) = (a, b);
         while (b.0 - a.0).abs() > 1.0 {
             let mid = ((a.0 + b.0) / 2.0).round();
-            let (g, _) = ev.eval(mid).map_err(|e| failed(&spec.vary, mid, e))?;
+            let (lo, hi) = (a.0.min(b.0) + 1.0, a.0.max(b.0) - 1.0);
+            let (mid, g) = match ev.eval_near(mid, lo, hi) {
+                Ok(r) => r,
+                // No valid size strictly between: a and b are neighbouring valid sizes.
+                Err(PointError::Input(_)) => break,
+                Err(e) => return Err(failed(&spec.vary, mid, e)),
+            };
             if t.met(g + goal) == t.met(a.1 + goal) {
                 a = (mid, g);
             } else {

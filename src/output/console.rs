@@ -53,7 +53,15 @@ pub fn steady(r: &SteadyReport) -> String {
     let l = &r.lumped;
     match &r.network {
         None => {
-            let _ = writeln!(out, "\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)", r.case, r.arrangement, r.length_m, r.cells, r.iterations);
+            let _ = writeln!(
+                out,
+                "\n{} — {} exchanger, {} m, {} cells ({} Newton iterations)",
+                r.case,
+                r.arrangement,
+                crate::text::num(r.length_m),
+                r.cells,
+                r.iterations
+            );
         }
         Some(n) => {
             let _ = writeln!(
