@@ -123,13 +123,24 @@ fn whole_rows_of_a_tube_bank_meet_the_target_and_one_row_fewer_does_not() {
 
 #[test]
 fn targets_out_of_reach_are_refused_with_the_reachable_limit() {
-    // Above the thermodynamic maximum duty C_min (T_h,in − T_c,in) = 1050 × 95 W: no length
-    // reaches it, and the limit the search found is stated.
+    // Above the thermodynamic maximum duty C_min (T_h,in − T_c,in) = 1050 × 95 W: no size
+    // reaches it, and that limit is stated.
     let case = constant_case("[size]\nduty_W = 200000.0\nvary = \"length_m\"\n");
+    let e = size(&case.source, case.design.size.as_ref().unwrap()).unwrap_err();
+    assert!(matches!(e, SizeError::Unreachable(_)));
+    assert!(e.to_string().contains("closest reachable is 99750 W") && e.to_string().contains("thermodynamic maximum"), "{e}");
+    // Parallel flow cannot pass ε = 1/(1 + C_r) at any length (Incropera & DeWitt 6th ed.,
+    // Eq. 11.28a as NTU → ∞) [A]: 70 kW lies between that limit (61.3 kW) and the
+    // thermodynamic maximum. The search runs to its bound and states what it reached there.
+    let parallel = demo_text("constant-property-check.toml").replace("arrangement = \"counterflow\"", "arrangement = \"parallel\"");
+    let case = parse(&format!("{parallel}\n[size]\nduty_W = 70000.0\nvary = \"length_m\"\n"));
     match size(&case.source, case.design.size.as_ref().unwrap()) {
-        Err(e @ SizeError::Unreachable(_)) => {
-            let m = e.to_string();
-            assert!(m.contains("closest reachable") && m.contains("size.highest"), "{m}");
+        Err(SizeError::Unreachable(u)) => {
+            let limit: f64 = u.limit.parse().unwrap();
+            let cr: f64 = 1050.0 / 1672.0;
+            let parallel_max = 1050.0 * 95.0 / (1.0 + cr);
+            assert!((limit - parallel_max).abs() < 1e-3 * parallel_max, "{limit} W against {parallel_max} W");
+            assert!(u.why.contains("size.highest") && u.at.contains("500"), "{u:?}");
         }
         other => panic!("expected unreachable, got {other:?}"),
     }

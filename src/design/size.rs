@@ -80,7 +80,7 @@ pub struct Sizing {
 
 /// A target beyond reach: the closest value reached, where, and why the search stopped.
 #[derive(Debug, Clone, thiserror::Error)]
-#[error("{target} = {goal} {unit} cannot be reached by varying {vary}: the closest reachable is {limit} {unit} at {vary} = {at}{why}")]
+#[error("{target} = {goal} {unit} cannot be reached by varying {vary}: the closest reachable is {limit} {unit}{at}{why}")]
 pub struct Unreachable {
     /// Target key.
     pub target: &'static str,
@@ -92,7 +92,7 @@ pub struct Unreachable {
     pub vary: String,
     /// The reachable limit, as text.
     pub limit: String,
-    /// Where it is reached, as text.
+    /// Where it is reached (" at length_m = 1200"), or empty.
     pub at: String,
     /// Why the search could not go further.
     pub why: String,
@@ -220,10 +220,27 @@ pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeErro
             unit: t.unit(),
             vary: spec.vary.clone(),
             limit: num(limit_g + t.goal()),
-            at: num(at),
+            at: format!(" at {} = {}", spec.vary, num(at)),
             why,
         }))
     };
+    // A duty at or above C_min (T_h,in − T_c,in) is out of reach of any size (a flow or an
+    // inlet changes that limit: then the search finds the limit itself).
+    if let Target::Duty(goal) = t {
+        let max = source.variant(&[(&spec.vary, spec.start)]).map(|c| c.build().max_duty_w()).unwrap_or(f64::INFINITY);
+        let stream_key = spec.vary.starts_with("hot.") || spec.vary.starts_with("cold.");
+        if !stream_key && goal >= max {
+            return Err(SizeError::Unreachable(Box::new(Unreachable {
+                target: t.key(),
+                goal: num(goal),
+                unit: t.unit(),
+                vary: spec.vary.clone(),
+                limit: num(max),
+                at: String::new(),
+                why: ", the thermodynamic maximum C_min (T_h,in − T_c,in), which a larger exchanger approaches but never reaches".into(),
+            })));
+        }
+    }
     let (a, b) = if g0.abs() <= tol && !whole {
         ((v0, g0), (v0, g0))
     } else {
