@@ -293,3 +293,29 @@ fn whole_sizes_skip_values_that_make_no_valid_exchanger() {
     let e = size(&case.source, case.design.size.as_ref().unwrap()).unwrap_err().to_string();
     assert!(e.contains("closest reachable") && e.contains("need more room"), "{e}");
 }
+
+mod random_targets {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 12, ..ProptestConfig::default() })]
+
+        /// Any reachable hot outlet, in counterflow or parallel flow: the length found,
+        /// rated again, meets it within the sizing tolerance, in a handful of solves.
+        #[test]
+        fn any_reachable_outlet_is_met_on_re_rating(parallel in any::<bool>(), share in 0.05f64..0.95) {
+            let cr: f64 = 1050.0 / 1672.0;
+            // Reachable effectiveness: below 1 (counterflow) or 1/(1 + C_r) (parallel) [A].
+            let eps_max = if parallel { 1.0 / (1.0 + cr) } else { 1.0 };
+            let goal = 120.0 - share * 0.97 * eps_max * 95.0;
+            let text = demo_text("constant-property-check.toml");
+            let text = if parallel { text.replace("arrangement = \"counterflow\"", "arrangement = \"parallel\"") } else { text };
+            let case = parse(&format!("{text}\n[size]\nhot_outlet_C = {goal:?}\nvary = \"length_m\"\n"));
+            let (s, sized) = size(&case.source, case.design.size.as_ref().unwrap()).unwrap();
+            let r = hxgrid::rate(&sized.name, &sized.build(), &sized.solver).unwrap();
+            prop_assert!((r.hot_outlet_C - goal).abs() <= s.tolerance, "goal {goal}, re-rated {}", r.hot_outlet_C);
+            prop_assert!(s.evaluations <= 20, "{} evaluations", s.evaluations);
+        }
+    }
+}
