@@ -56,6 +56,26 @@ fn main() {
             r.samples_failed
         );
     }
+    // Where a sweep point's time goes, single-threaded: the variant's parse and validation
+    // (which builds the exchanger once for its derived checks), the build, the rating.
+    let n = 200;
+    let kv = [("hot.mass_flow_kg_s", hxgrid::design::keys::KeyValue { value: 0.1, whole: false })];
+    let t = Instant::now();
+    for _ in 0..n {
+        std::hint::black_box(case.source.variant(&kv).unwrap());
+    }
+    let parse = t.elapsed().as_secs_f64() / n as f64;
+    let t = Instant::now();
+    for _ in 0..n {
+        std::hint::black_box(case.build());
+    }
+    let build = t.elapsed().as_secs_f64() / n as f64;
+    let t = Instant::now();
+    for _ in 0..n {
+        std::hint::black_box(hxgrid::rate(&case.name, &ex, &case.solver).unwrap());
+    }
+    let rate = t.elapsed().as_secs_f64() / n as f64;
+    println!("\none sweep point: variant parse + validation {:.2} ms, build {:.2} ms, rating {:.2} ms", 1e3 * parse, 1e3 * build, 1e3 * rate);
     let sspec = case.design.size.clone().unwrap();
     let t = Instant::now();
     let (s, _) = hxgrid::design::size::size(&case.source, &sspec).unwrap();

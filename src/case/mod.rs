@@ -27,7 +27,14 @@ pub const STARTER: &str = include_str!("starter.toml");
 /// The case file's JSON Schema (draft 2020-12), derived from the serde types of
 /// [`CaseFile`]: what `hxgrid schema` prints and what the shape check walks.
 pub fn json_schema() -> serde_json::Value {
-    serde_json::to_value(schemars::schema_for!(CaseFile)).expect("a schema serialises")
+    schema_root().clone()
+}
+
+/// The schema, derived once per process (the shape check reads it for every case parsed,
+/// and a sweep parses one case per point).
+pub(crate) fn schema_root() -> &'static serde_json::Value {
+    static ROOT: std::sync::OnceLock<serde_json::Value> = std::sync::OnceLock::new();
+    ROOT.get_or_init(|| serde_json::to_value(schemars::schema_for!(CaseFile)).expect("a schema serialises"))
 }
 
 /// The shape problems of case text (unknown keys, missing keys, wrong types, invalid

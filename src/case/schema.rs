@@ -208,8 +208,8 @@ fn describe(v: &Value) -> String {
 pub fn check(text: &str) -> Result<Shape, String> {
     let doc = ImDocument::parse(text).map_err(|e| e.to_string())?;
     let mut shape = Shape { problems: Vec::new(), unknown: Vec::new(), suggested: Vec::new(), bad_words: Vec::new(), wrong_type: Vec::new() };
-    let root = super::json_schema();
-    walk(text, &root, doc.as_table(), &mut Vec::new(), &fields_of(&root, &root), None, &mut shape);
+    let root = super::schema_root();
+    walk(text, root, doc.as_table(), &mut Vec::new(), &fields_of(root, root), None, &mut shape);
     Ok(shape)
 }
 

@@ -51,7 +51,7 @@ fn takes_whole_numbers(key: &str) -> bool {
     let leaf = key.rsplit('.').next().unwrap_or(key);
     // A key is whole-numbered if a property of that name is typed integer (no name is a
     // float in one table and an integer in another).
-    find_integer(&crate::case::json_schema(), leaf)
+    find_integer(crate::case::schema_root(), leaf)
 }
 
 fn find_integer(v: &serde_json::Value, leaf: &str) -> bool {
