@@ -319,3 +319,28 @@ mod random_targets {
         }
     }
 }
+
+#[test]
+fn the_starter_s_commented_studies_run_when_uncommented() {
+    // `hxgrid new` writes the study tables commented out; uncommented, each command runs.
+    let mut on = false;
+    let text: String = hxgrid::case::STARTER
+        .lines()
+        .map(|l| {
+            on |= l.starts_with("# Design studies");
+            let keep = on && !l.starts_with("# Design") && l.starts_with("# ") && !l.trim_end().eq("#");
+            if keep {
+                format!("{}\n", &l[2..])
+            } else {
+                format!("{l}\n")
+            }
+        })
+        .collect();
+    let case = hxgrid::parse_case(&text, "starter").unwrap();
+    assert!(case.design.size.is_some() && case.design.sweep.is_some() && case.design.uncertainty.is_some());
+    let (s, _) = size(&case.source, case.design.size.as_ref().unwrap()).unwrap();
+    assert!((s.achieved - 40.0).abs() <= s.tolerance);
+    let spec = case.design.sweep.as_ref().unwrap();
+    let points = hxgrid::design::sweep::run(&case.source, spec, &[0, 17], &|| {});
+    assert!(points.iter().all(|p| p.outcome.is_ok()), "{:?}", points.iter().map(|p| &p.outcome).collect::<Vec<_>>());
+}
