@@ -19,7 +19,7 @@ pub use file::*;
 pub use problem::{CaseError, Problem, ProblemKind};
 pub use spec::{Case, FilmSpec, Geometry, Storage, StreamSpec, TransientSpec, TubeSide};
 pub use transient_input::{SNAPSHOTS_MAX, SNAPSHOT_MAX_ROWS, TIMESERIES_MAX_ROWS};
-pub use validate::{check_name, load, parse_in, parse_str, velocity_warnings, NAME_MAX};
+pub use validate::{check_name, load, parse_built, parse_in, parse_str, velocity_warnings, NAME_MAX};
 
 /// A commented starter case (an invented scenario) written by `hxgrid new`.
 pub const STARTER: &str = include_str!("starter.toml");

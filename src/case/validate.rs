@@ -35,6 +35,12 @@ pub fn parse_str(text: &str, origin: &str, default_name: &str) -> Result<Case, C
 /// all at once with line numbers; then the values. If the only shape problems are unknown
 /// keys, the values are checked too (with those keys set aside) and reported together.
 pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -> Result<Case, CaseError> {
+    parse_built(text, origin, default_name, base_dir).map(|(case, _)| case)
+}
+
+/// [`parse_in`], also returning the exchanger validation built for its derived checks (a
+/// study rating many variants saves building each twice).
+pub fn parse_built(text: &str, origin: &str, default_name: &str, base_dir: &Path) -> Result<(Case, Exchanger), CaseError> {
     let shape = super::schema::check(text).map_err(|message| CaseError::Syntax { origin: origin.into(), message })?;
     let invalid = |mut problems: Vec<Problem>| {
         for p in problems.iter_mut().filter(|p| p.line.is_none()) {
@@ -65,7 +71,7 @@ pub fn parse_in(text: &str, origin: &str, default_name: &str, base_dir: &Path) -
                 return Err(invalid(derived));
             }
             case.warnings.extend(velocity_warnings(&ex));
-            Ok(case)
+            Ok((case, ex))
         }
         Ok(_) => Err(invalid(problems)),
         Err(more) => {

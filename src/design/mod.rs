@@ -29,9 +29,14 @@ pub struct Source {
 impl Source {
     /// The case with `values` set, validated like a case file the user wrote.
     pub fn variant(&self, values: &[(&str, KeyValue)]) -> Result<Case, CaseError> {
+        self.variant_built(values).map(|(case, _)| case)
+    }
+
+    /// [`Source::variant`] and its exchanger (built once, by the validation).
+    pub fn variant_built(&self, values: &[(&str, KeyValue)]) -> Result<(Case, crate::Exchanger), CaseError> {
         let text = keys::with_values(&self.text, values).map_err(|message| CaseError::Syntax { origin: self.origin.clone(), message })?;
         let shown: Vec<String> = values.iter().map(|(k, v)| format!("{k} = {}", crate::text::num(v.value))).collect();
-        crate::case::parse_in(&text, &format!("{} with {}", self.origin, shown.join(", ")), &self.default_name, &self.base_dir)
+        crate::case::parse_built(&text, &format!("{} with {}", self.origin, shown.join(", ")), &self.default_name, &self.base_dir)
     }
 
     /// SHA-256 of the case file's text, hex.

@@ -158,8 +158,7 @@ impl Evaluator<'_> {
 
     /// (target − goal, area) at `v`.
     fn eval(&mut self, v: f64) -> Result<(f64, f64), PointError> {
-        let case = self.case(v)?;
-        let ex = case.build();
+        let (case, ex) = self.source.variant_built(&[(&self.spec.vary, self.value(v))]).map_err(|e| PointError::Input(one_line(&e)))?;
         let e = evaluate(&ex, &case.solver, self.warm.as_deref()).map_err(|e| PointError::Solve(one_line(&e)))?;
         self.evaluations += 1;
         self.newton += e.iterations;

@@ -94,8 +94,7 @@ pub struct Point {
 /// Rate one point.
 pub fn rate_point(source: &Source, spec: &SweepSpec, values: &[f64]) -> Result<PointResult, PointError> {
     let set: Vec<(&str, KeyValue)> = spec.inputs.iter().zip(values).map(|(i, &v)| (i.key.as_str(), KeyValue { value: v, whole: i.whole })).collect();
-    let case = source.variant(&set).map_err(|e| PointError::Input(one_line(&e)))?;
-    let ex = case.build();
+    let (case, ex) = source.variant_built(&set).map_err(|e| PointError::Input(one_line(&e)))?;
     let r = study::rate(&case.name, &ex, &case.solver, &RatingOptions::default(), &mut SilentObserver).map_err(|e| PointError::Solve(one_line(&e)))?;
     let out = PointResult {
         duty_W: r.duty_W,
