@@ -566,5 +566,9 @@ fn uncertainty(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     if let Some(b) = &bar {
         b.finish_and_clear();
     }
+    if report.samples_failed == report.samples {
+        let first = report.sample_rows.iter().find_map(|s| s.outcome.as_ref().err()).map(|e| e.to_string()).unwrap_or_default();
+        return solver_failed(&format!("every one of the {} samples failed to solve (the first: {first})", report.samples), None);
+    }
     finish(hxgrid::output::design::write_uncertainty(&dir, &report), quiet, || outln!("{}", hxgrid::output::console::uncertainty(&report)))
 }
