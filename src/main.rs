@@ -424,7 +424,14 @@ fn size(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     if let Err(code) = destination_ok(&dir) {
         return code;
     }
-    let (sizing, sized) = match hxgrid::design::size::size(&case.source, spec) {
+    let mut step = 0;
+    let mut show = |value: f64, achieved: f64| {
+        step += 1;
+        if !quiet {
+            errln!("  sizing solve {step:>2}: {} = {} → {} = {}", spec.vary, num(value), spec.target.key(), num(achieved));
+        }
+    };
+    let (sizing, sized) = match hxgrid::design::size::size_observed(&case.source, spec, &mut show) {
         Ok(s) => s,
         Err(e) => return sizing_failed(&e),
     };

@@ -142,6 +142,7 @@ pub enum SizeError {
 struct Evaluator<'a> {
     source: &'a Source,
     spec: &'a SizeSpec,
+    observer: &'a mut dyn FnMut(f64, f64),
     warm: Option<Vec<nalgebra::Vector3<f64>>>,
     evaluations: usize,
     newton: usize,
@@ -162,6 +163,8 @@ impl Evaluator<'_> {
         let e = evaluate(&ex, &case.solver, self.warm.as_deref()).map_err(|e| PointError::Solve(one_line(&e)))?;
         self.evaluations += 1;
         self.newton += e.iterations;
+        let (used, achieved) = (self.value(v).value, self.spec.target.of(&e.q));
+        (self.observer)(used, achieved);
         if !e.unknowns.is_empty() {
             self.warm = Some(e.unknowns);
         }
@@ -206,7 +209,12 @@ fn failed(vary: &str, v: f64, e: PointError) -> SizeError {
 /// Size the case: find the value of `spec.vary` at which the target is met. Returns the
 /// outcome and the sized case (to rate and write in full).
 pub fn size(source: &Source, spec: &SizeSpec) -> Result<(Sizing, Case), SizeError> {
-    let mut ev = Evaluator { source, spec, warm: None, evaluations: 0, newton: 0 };
+    size_observed(source, spec, &mut |_, _| {})
+}
+
+/// [`size`], telling `observer` each value tried and the target quantity it gave.
+pub fn size_observed(source: &Source, spec: &SizeSpec, observer: &mut dyn FnMut(f64, f64)) -> Result<(Sizing, Case), SizeError> {
+    let mut ev = Evaluator { source, spec, observer, warm: None, evaluations: 0, newton: 0 };
     let whole = spec.start.whole;
     let t = spec.target;
     let tol = target_tolerance(&t);
