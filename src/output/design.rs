@@ -207,8 +207,9 @@ fn sweep_plot(path: &Path, m: &SweepManifest, csv: &str) -> Result<(), OutputErr
     let col = |name: &str| header.iter().position(|h| *h == name);
     let ni = m.inputs.len();
     let (duty, hot, cold) = (col("duty_W"), col("hot_outlet_C"), col("cold_outlet_C"));
+    let (dp_hot, dp_cold) = (col("hot_pressure_drop_Pa"), col("cold_pressure_drop_Pa"));
     // Group rows by the values of the other inputs (in order of first appearance).
-    let mut groups: Vec<(String, Vec<[f64; 4]>)> = Vec::new();
+    let mut groups: Vec<(String, Vec<[f64; 6]>)> = Vec::new();
     for l in lines {
         let f: Vec<&str> = l.split(',').collect();
         if f.get(ni + 1) != Some(&"ok") {
@@ -220,7 +221,7 @@ fn sweep_plot(path: &Path, m: &SweepManifest, csv: &str) -> Result<(), OutputErr
         } else {
             (1..ni).map(|k| format!("{} = {}", m.inputs[k].key, f[k + 1])).collect::<Vec<_>>().join(", ")
         };
-        let row = [num(Some(1)), num(duty), num(hot), num(cold)];
+        let row = [num(Some(1)), num(duty), num(hot), num(cold), num(dp_hot), num(dp_cold)];
         match groups.iter_mut().find(|g| g.0 == label) {
             Some(g) => g.1.push(row),
             None => groups.push((label, vec![row])),
@@ -252,7 +253,17 @@ fn sweep_plot(path: &Path, m: &SweepManifest, csv: &str) -> Result<(), OutputErr
     let mut outlets = curves(2, 1.0, 3, !single);
     outlets.extend(curves(3, 1.0, 1, false));
     let title = format!("{}: sweep of {} ({} points)", m.case, m.inputs[0].key, m.points);
-    let panels = [("duty (kW)".to_string(), duty), ("outlets (°C): hot thick, cold thin".to_string(), outlets)];
+    let mut panels = vec![("duty (kW)".to_string(), duty), ("outlets (°C): hot thick, cold thin".to_string(), outlets)];
+    // Each stream's pressure drop where its surface has a friction model (an empty column
+    // reads as NaN), in a panel of its own: the two often differ tenfold.
+    for (k, which) in [(4, "hot"), (5, "cold")] {
+        let mut drops = curves(k, 1e-3, 2, false);
+        drops.iter_mut().for_each(|c| c.3.retain(|p| p.1.is_finite()));
+        drops.retain(|c| !c.3.is_empty());
+        if !drops.is_empty() {
+            panels.push((format!("{which} pressure drop (kPa)"), drops));
+        }
+    }
     crate::output::svg::study_panels(path, &title, &m.inputs[0].key, &panels)
 }
 
