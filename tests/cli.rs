@@ -218,3 +218,18 @@ fn simulate_command() {
     assert_eq!(o.status.code(), Some(3));
     assert!(text_of(&o).contains("transient.cold_mass_flow_kg_s.times_s"), "{}", text_of(&o));
 }
+
+#[test]
+fn every_case_file_the_help_and_readme_name_exists() {
+    let help = text(&run(&["--help"], &root()));
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    for source in [help, readme] {
+        for word in source.split(|c: char| c.is_whitespace() || "`()[]".contains(c)) {
+            if let Some(rest) = word.strip_prefix("cases/") {
+                if rest.ends_with(".toml") {
+                    assert!(root().join("cases").join(rest).is_file(), "{word} is named but does not exist");
+                }
+            }
+        }
+    }
+}
