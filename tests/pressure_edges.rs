@@ -64,3 +64,27 @@ fn compressibility_warning_is_for_gases_only() {
     assert!(dp > 0.3 * 3e5, "{dp}");
     assert!(!r.warnings.iter().any(|w| w.contains("compressibility")), "{:?}", r.warnings);
 }
+
+/// A cell network has no face pressures, so its local pressure is the inlet's less the
+/// stream's drop in proportion to the cells passed through. The shell-and-tube demo's shell
+/// side (Bell–Delaware, about 16 kPa over two shells) fed with 70 °C water at 0.5 bar: the
+/// inlet is 11 K below saturation (81.3 °C at 0.5 bar, IAPWS-IF97), but part way along the
+/// pressure has fallen below the saturation pressure of the warmed water (0.39 bar at
+/// 75.5 °C) and the run must stop there rather than rate a flashing liquid.
+#[test]
+fn a_network_stream_that_flashes_part_way_is_refused() {
+    let demo = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/cases/shell-and-tube-water-cooler.toml")).unwrap();
+    let cold = demo.find("[cold]").unwrap();
+    let (head, tail) = demo.split_at(cold);
+    let tail = tail.replacen("inlet_temperature_C = 25.0", "inlet_temperature_C = 70.0", 1).replacen("pressure_bar_abs = 3.0", "pressure_bar_abs = 0.5", 1);
+    match rate(&format!("{head}{tail}")) {
+        Err(hxgrid::solve::SolveError::Flashing { stream, position_m, pressure_pa, saturation_pa, .. }) => {
+            assert_eq!(stream, hxgrid::model::Side::Cold);
+            assert!(position_m > 0.0 && pressure_pa < saturation_pa && pressure_pa > 0.3e5, "{position_m} m, {pressure_pa} Pa < {saturation_pa} Pa");
+        }
+        other => panic!("expected flashing, got {:?}", other.map(|r| r.cold_pressure_drop_Pa)),
+    }
+    // At 3 bar the same stream stays liquid all the way.
+    let tail = demo.split_at(cold).1.replacen("inlet_temperature_C = 25.0", "inlet_temperature_C = 70.0", 1);
+    assert!(rate(&format!("{head}{tail}")).is_ok());
+}

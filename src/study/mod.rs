@@ -107,7 +107,12 @@ pub fn rate(
     let lumped = lumped::rate(ex);
     let solved = match ex.arrangement.layout() {
         None => solved_line(ex, &solve_steady(ex, settings, observer)?),
-        Some(layout) => network::solved(ex, &layout, &crate::solve::solve_network(ex, &layout, settings, observer)?),
+        Some(layout) => {
+            let sol = crate::solve::solve_network(ex, &layout, settings, observer)?;
+            let solved = network::solved(ex, &layout, &sol);
+            network::check_local_pressure(ex, &sol, solved.pressure_drop)?;
+            solved
+        }
     };
     let grid_error_estimate = grid_error(ex, settings, solved.cells, solved.q)?;
     let grid_study = match options.study_levels {

@@ -99,3 +99,71 @@ pub(super) fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution) -> 
         network: Some((*layout, [spread(&fields.hot_outlet_lanes_c, q.hot_outlet_c), spread(&fields.cold_outlet_lanes_c, q.cold_outlet_c)], fields)),
     }
 }
+
+/// How many cells each stream node lies from its stream's inlet, along the flow (a header
+/// takes the deepest of its sources). Networks carry no face pressures, so the local
+/// pressure is taken to fall in proportion to this depth.
+fn path_depths(net: &crate::model::Network, side: Side) -> Vec<usize> {
+    use crate::model::network::NodeKind;
+    use crate::model::Feed;
+    let s = side.index();
+    let mut depth = vec![0usize; net.nodes.len()];
+    // Streams flow forward (no cycles): relaxing at most once per node settles every depth.
+    for _ in 0..=net.nodes.len() {
+        let mut changed = false;
+        for c in &net.cells {
+            let from = match c.feed[s] {
+                Feed::Inlet => 0,
+                Feed::Node(n) => depth[n],
+            };
+            if from + 1 > depth[c.out[s]] {
+                depth[c.out[s]] = from + 1;
+                changed = true;
+            }
+        }
+        for (n, node) in net.nodes.iter().enumerate() {
+            if let NodeKind::Mixer(sources) = &node.kind {
+                let d = sources.iter().map(|&m| depth[m]).max().unwrap_or(0);
+                if d > depth[n] {
+                    depth[n] = d;
+                    changed = true;
+                }
+            }
+        }
+        if !changed {
+            break;
+        }
+    }
+    depth
+}
+
+/// The local-pressure check of an axial line, for a network: at each cell's outlet the
+/// pressure is the inlet's less the stream's drop in proportion to the cells passed
+/// through; it must stay positive, and a liquid's above its saturation pressure at the
+/// local temperature (flashing). Without a friction model the inlet pressure holds
+/// everywhere.
+pub(super) fn check_local_pressure(ex: &Exchanger, sol: &NetworkSolution, drops: [Option<f64>; 2]) -> Result<(), SolveError> {
+    let net = &sol.network;
+    for side in [Side::Hot, Side::Cold] {
+        let s = side.index();
+        let stream = ex.stream(side);
+        let depth = path_depths(net, side);
+        let deepest = depth[net.outlet[s]].max(1) as f64;
+        let drop = drops[s].unwrap_or(0.0);
+        for c in &net.cells {
+            let node = c.out[s];
+            let p = stream.inlet_pressure_pa - drop * (depth[node] as f64 / deepest).min(1.0);
+            let position_m = c.position[0] * ex.length_m;
+            if p.is_nan() || p <= 0.0 {
+                return Err(SolveError::NegativePressure { stream: side, position_m, pressure_pa: p, inlet_pa: stream.inlet_pressure_pa });
+            }
+            let t = sol.node_c[node];
+            if let Some(p_sat) = stream.fluid.saturation_pressure_pa(t) {
+                if p < p_sat {
+                    return Err(SolveError::Flashing { stream: side, position_m, pressure_pa: p, saturation_pa: p_sat, temperature_c: t });
+                }
+            }
+        }
+    }
+    Ok(())
+}
