@@ -102,36 +102,43 @@ pub(super) fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution) -> 
 
 /// How many cells each stream node lies from its stream's inlet, along the flow (a header
 /// takes the deepest of its sources). Networks carry no face pressures, so the local
-/// pressure is taken to fall in proportion to this depth.
+/// pressure is taken to fall in proportion to this depth. Nodes are visited in flow order
+/// (Kahn's topological sort: streams flow forward, so the graph has no cycles), O(cells).
 fn path_depths(net: &crate::model::Network, side: Side) -> Vec<usize> {
     use crate::model::network::NodeKind;
     use crate::model::Feed;
     let s = side.index();
-    let mut depth = vec![0usize; net.nodes.len()];
-    // Streams flow forward (no cycles): relaxing at most once per node settles every depth.
-    for _ in 0..=net.nodes.len() {
-        let mut changed = false;
-        for c in &net.cells {
-            let from = match c.feed[s] {
-                Feed::Inlet => 0,
-                Feed::Node(n) => depth[n],
-            };
-            if from + 1 > depth[c.out[s]] {
-                depth[c.out[s]] = from + 1;
-                changed = true;
+    let n = net.nodes.len();
+    // Edges (from, to, cells added): a cell from its feed to its outlet, a header from each
+    // source; inlet-fed cells start at depth 1.
+    let mut edges: Vec<Vec<(usize, usize)>> = vec![Vec::new(); n];
+    let mut incoming = vec![0usize; n];
+    let mut depth = vec![0usize; n];
+    for c in &net.cells {
+        match c.feed[s] {
+            Feed::Inlet => depth[c.out[s]] = depth[c.out[s]].max(1),
+            Feed::Node(m) => {
+                edges[m].push((c.out[s], 1));
+                incoming[c.out[s]] += 1;
             }
         }
-        for (n, node) in net.nodes.iter().enumerate() {
-            if let NodeKind::Mixer(sources) = &node.kind {
-                let d = sources.iter().map(|&m| depth[m]).max().unwrap_or(0);
-                if d > depth[n] {
-                    depth[n] = d;
-                    changed = true;
-                }
+    }
+    for (to, node) in net.nodes.iter().enumerate() {
+        if let NodeKind::Mixer(sources) = &node.kind {
+            for &m in sources {
+                edges[m].push((to, 0));
+                incoming[to] += 1;
             }
         }
-        if !changed {
-            break;
+    }
+    let mut ready: Vec<usize> = (0..n).filter(|&k| incoming[k] == 0).collect();
+    while let Some(m) = ready.pop() {
+        for &(to, add) in &edges[m] {
+            depth[to] = depth[to].max(depth[m] + add);
+            incoming[to] -= 1;
+            if incoming[to] == 0 {
+                ready.push(to);
+            }
         }
     }
     depth
