@@ -48,8 +48,8 @@ pub fn shard_indices(total: usize, shard: Option<(usize, usize)>) -> Vec<usize> 
     }
 }
 
-/// Key results of one rated point.
-#[derive(Debug, Clone, Serialize)]
+/// Key results of one rated point (the result columns of sweep.csv, in this order).
+#[derive(Debug, Clone, Default, Serialize)]
 #[allow(non_snake_case)]
 pub struct PointResult {
     /// Duty, W.

@@ -33,22 +33,21 @@ fn field(s: &str) -> String {
 
 /// The result columns of sweep.csv (the serialised names of [`PointResult`]).
 fn result_columns() -> Vec<String> {
-    let blank = PointResult {
-        duty_W: 0.0,
-        hot_outlet_C: 0.0,
-        cold_outlet_C: 0.0,
-        UA_W_K: 0.0,
-        effectiveness: 0.0,
-        ntu: 0.0,
-        area_m2: 0.0,
-        lumped_duty_W: 0.0,
-        grid_error_duty_W: None,
-        grid_error_hot_outlet_K: None,
-        hot_pressure_drop_Pa: None,
-        cold_pressure_drop_Pa: None,
-        warnings: 0,
-    };
-    super::csv::columns(&blank)
+    super::csv::columns(&PointResult::default())
+}
+
+/// A result row's values in column order, each in round-trip form (an absent optional empty).
+fn result_fields(r: &PointResult) -> Vec<String> {
+    let mut out = Vec::new();
+    super::finite::visit(r, "", &mut |_, leaf| {
+        out.push(match leaf {
+            super::finite::Leaf::Real(Some(x)) => exact(x),
+            super::finite::Leaf::Real(None) => String::new(),
+            super::finite::Leaf::Whole(i) => i.to_string(),
+        });
+        true
+    });
+    out
 }
 
 /// The header line of sweep.csv.
@@ -70,23 +69,7 @@ pub fn sweep_line(p: &Point) -> String {
     match &p.outcome {
         Ok(r) => {
             line.push_str(",ok");
-            let opt = |v: Option<f64>| v.map(exact).unwrap_or_default();
-            let values = [
-                exact(r.duty_W),
-                exact(r.hot_outlet_C),
-                exact(r.cold_outlet_C),
-                exact(r.UA_W_K),
-                exact(r.effectiveness),
-                exact(r.ntu),
-                exact(r.area_m2),
-                exact(r.lumped_duty_W),
-                opt(r.grid_error_duty_W),
-                opt(r.grid_error_hot_outlet_K),
-                opt(r.hot_pressure_drop_Pa),
-                opt(r.cold_pressure_drop_Pa),
-                r.warnings.to_string(),
-            ];
-            for v in values {
+            for v in result_fields(r) {
                 let _ = write!(line, ",{v}");
             }
             line.push(',');
