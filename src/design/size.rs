@@ -153,10 +153,6 @@ impl Evaluator<'_> {
         KeyValue { value: if self.spec.start.whole { v.round() } else { v }, whole: self.spec.start.whole }
     }
 
-    fn case(&self, v: f64) -> Result<Case, PointError> {
-        self.source.variant(&[(&self.spec.vary, self.value(v))]).map_err(|e| PointError::Input(one_line(&e)))
-    }
-
     /// (target − goal, area) at `v`.
     fn eval(&mut self, v: f64) -> Result<(f64, f64), PointError> {
         let (case, ex) = self.source.variant_built(&[(&self.spec.vary, self.value(v))]).map_err(|e| PointError::Input(one_line(&e)))?;
@@ -220,32 +216,30 @@ pub fn size_observed(source: &Source, spec: &SizeSpec, observer: &mut dyn FnMut(
     let tol = target_tolerance(&t);
     let v0 = spec.start.value;
     let (g0, area0) = ev.eval(v0).map_err(|e| failed(&spec.vary, v0, e))?;
-    let unreachable = |limit_g: f64, at: f64, why: String| {
+    // The target's closest reachable value, where it is reached (None: at no finite value),
+    // and why the search could not go further.
+    let unreachable = |limit: f64, at: Option<f64>, why: String| {
         SizeError::Unreachable(Box::new(Unreachable {
             target: t.key(),
             goal: num(t.goal()),
             unit: t.unit(),
             vary: spec.vary.clone(),
-            limit: num(limit_g + t.goal()),
-            at: format!(" at {} = {}", spec.vary, num(at)),
+            limit: num(limit),
+            at: at.map(|v| format!(" at {} = {}", spec.vary, num(v))).unwrap_or_default(),
             why,
         }))
     };
     // A duty at or above C_min (T_h,in − T_c,in) is out of reach of any size (a flow or an
     // inlet changes that limit: then the search finds the limit itself).
     if let Target::Duty(goal) = t {
-        let max = source.variant(&[(&spec.vary, spec.start)]).map(|c| c.build().max_duty_w()).unwrap_or(f64::INFINITY);
+        let max = source.variant_built(&[(&spec.vary, spec.start)]).map(|(_, ex)| ex.max_duty_w()).unwrap_or(f64::INFINITY);
         let stream_key = spec.vary.starts_with("hot.") || spec.vary.starts_with("cold.");
         if !stream_key && goal >= max {
-            return Err(SizeError::Unreachable(Box::new(Unreachable {
-                target: t.key(),
-                goal: num(goal),
-                unit: t.unit(),
-                vary: spec.vary.clone(),
-                limit: num(max),
-                at: String::new(),
-                why: ", the thermodynamic maximum C_min (T_h,in − T_c,in), which a larger exchanger approaches but never reaches".into(),
-            })));
+            return Err(unreachable(
+                max,
+                None,
+                ", the thermodynamic maximum C_min (T_h,in − T_c,in), which a larger exchanger approaches but never reaches".into(),
+            ));
         }
     }
     let (a, b) = if g0.abs() <= tol && !whole {
@@ -292,7 +286,7 @@ pub fn size_observed(source: &Source, spec: &SizeSpec, observer: &mut dyn FnMut(
         loop {
             if last.0 == bound {
                 let side = if up { "highest" } else { "lowest" };
-                return Err(unreachable(last.1, last.0, format!(" (the search bound size.{side}; widen it if a larger range is meaningful)")));
+                return Err(unreachable(last.1 + t.goal(), Some(last.0), format!(" (the search bound size.{side}; widen it if a larger range is meaningful)")));
             }
             let next = next_of(last.0);
             let (lo_n, hi_n) = if up { (last.0 + 1.0, bound) } else { (bound, last.0 - 1.0) };
@@ -317,7 +311,7 @@ pub fn size_observed(source: &Source, spec: &SizeSpec, observer: &mut dyn FnMut(
                             Err(_) => bad = mid,
                         }
                     }
-                    return Err(unreachable(good.1, good.0, format!(" (with {} = {} the case fails: {reason})", spec.vary, num(next))));
+                    return Err(unreachable(good.1 + t.goal(), Some(good.0), format!(" (with {} = {} the case fails: {reason})", spec.vary, num(next))));
                 }
             }
         }
@@ -359,9 +353,9 @@ fn finish(ev: &mut Evaluator, spec: &SizeSpec, (a, b): ((f64, f64), (f64, f64)),
             .map_err(|(v, e)| failed(&spec.vary, v, e))?;
         (u.exp(), g, None)
     };
-    // The final case, and its area (re-evaluated so the warm start and the outcome agree).
-    let case = ev.case(value).map_err(|e| failed(&spec.vary, value, e))?;
-    let area_required = case.build().reference_area_per_length_m * case.length_m;
+    // The sized case and its area, from one validation and build.
+    let (case, ex) = ev.source.variant_built(&[(&spec.vary, ev.value(value))]).map_err(|e| failed(&spec.vary, value, PointError::Input(one_line(&e))))?;
+    let area_required = ex.reference_area_per_length_m * ex.length_m;
     let overdesign = ((area0 - area_required).abs() > 1e-12 * area0.abs()).then(|| (area0 / area_required - 1.0) * 100.0);
     Ok((
         Sizing {
