@@ -384,16 +384,31 @@ fn print_report(r: &SteadyReport) {
 const EXIT_UNREACHABLE: u8 = 8;
 
 /// A progress bar over `n` items on a terminal (stderr), else nothing.
-fn count_bar(n: usize, quiet: bool, what: &str) -> Option<indicatif::ProgressBar> {
-    use std::io::IsTerminal;
-    (!quiet && std::io::stderr().is_terminal()).then(|| {
-        let b = indicatif::ProgressBar::new(n as u64);
-        b.set_style(
-            indicatif::ProgressStyle::with_template(&format!("{{spinner}} {what} {{pos}}/{{len}} [{{bar:40}}] elapsed {{elapsed_precise}}, left ~{{eta}}"))
-                .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-        );
-        b
-    })
+struct CountBar(Option<indicatif::ProgressBar>);
+
+impl CountBar {
+    fn new(n: usize, quiet: bool, what: &str) -> Self {
+        use std::io::IsTerminal;
+        CountBar((!quiet && std::io::stderr().is_terminal()).then(|| {
+            let b = indicatif::ProgressBar::new(n as u64);
+            b.set_style(
+                indicatif::ProgressStyle::with_template(&format!("{{spinner}} {what} {{pos}}/{{len}} [{{bar:40}}] elapsed {{elapsed_precise}}, left ~{{eta}}"))
+                    .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+            );
+            b
+        }))
+    }
+    /// One item done (from any thread).
+    fn tick(&self) {
+        if let Some(b) = &self.0 {
+            b.inc(1);
+        }
+    }
+    fn finish(&self) {
+        if let Some(b) = &self.0 {
+            b.finish_and_clear();
+        }
+    }
 }
 
 /// Map a sizing error to its message and exit code.
@@ -481,16 +496,9 @@ fn sweep(path: &Path, out: Option<PathBuf>, shard: Option<(usize, usize)>, quiet
         return code;
     }
     let indices = sweep::shard_indices(total, shard);
-    let bar = count_bar(indices.len(), quiet, "points");
-    let tick = || {
-        if let Some(b) = &bar {
-            b.inc(1);
-        }
-    };
-    let points = sweep::run(&case.source, spec, &indices, &tick);
-    if let Some(b) = &bar {
-        b.finish_and_clear();
-    }
+    let bar = CountBar::new(indices.len(), quiet, "points");
+    let points = sweep::run(&case.source, spec, &indices, &|| bar.tick());
+    bar.finish();
     let lines: Vec<String> = points.iter().map(sweep_line).collect();
     let manifest =
         SweepManifest::new(&case.name, &case.source.sha256(), spec.combine, &spec.inputs, total, shard.map(|(index, count)| Shard { index, count }), &lines);
@@ -563,16 +571,9 @@ fn uncertainty(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         Ok(r) => r,
         Err(e) => return solver_failed(&e, case::advice::steady(&e)),
     };
-    let bar = count_bar(spec.samples, quiet, "samples");
-    let tick = || {
-        if let Some(b) = &bar {
-            b.inc(1);
-        }
-    };
-    let report = hxgrid::design::uncertainty::study(&case, &nominal, &spec, &tick);
-    if let Some(b) = &bar {
-        b.finish_and_clear();
-    }
+    let bar = CountBar::new(spec.samples, quiet, "samples");
+    let report = hxgrid::design::uncertainty::study(&case, &nominal, &spec, &|| bar.tick());
+    bar.finish();
     if report.samples_failed == report.samples {
         let first = report.sample_rows.iter().find_map(|s| s.outcome.as_ref().err()).map(|e| e.to_string()).unwrap_or_default();
         return solver_failed(&format!("every one of the {} samples failed to solve (the first: {first})", report.samples), None);
