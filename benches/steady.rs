@@ -173,7 +173,44 @@ fn network_table() {
     }
 }
 
+/// A whole steady run at 100 000 cells, piece by piece: the solve alone, the rating (solve,
+/// the half-grid solve for the error estimate, lumped result, report assembly), and the
+/// files (`hxgrid run`'s writing, thinned profiles; then every cell).
+fn whole_run_table() {
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler.toml");
+    let case = hxgrid::case::load(&path).expect("demo case");
+    let ex = case.build();
+    let cells = 100_000;
+    let settings = SteadySettings { cells, ..case.solver.clone() };
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("target/bench-whole-run");
+    println!("\nwhole steady run of water-cooler.toml at {cells} cells (median of 5, s):");
+    let solve = median_time(5, || {
+        black_box(solve_steady(&ex, &settings, &mut SilentObserver).unwrap());
+    });
+    let rate = median_time(5, || {
+        black_box(hxgrid::study::rate("bench", &ex, &settings, &Default::default(), &mut SilentObserver).unwrap());
+    });
+    let report = hxgrid::study::rate("bench", &ex, &settings, &Default::default(), &mut SilentObserver).unwrap();
+    let write = median_time(5, || {
+        hxgrid::output::write_steady(&report, &dir, hxgrid::output::WriteOptions::default()).unwrap();
+    });
+    let write_all = median_time(5, || {
+        hxgrid::output::write_steady(&report, &dir, hxgrid::output::WriteOptions { all_cells: true }).unwrap();
+    });
+    println!("{:<44} {:>9} {:>12}", "part", "s", "× solve");
+    for (label, t) in [
+        ("solve", solve),
+        ("rating (solve + half grid + lumped + report)", rate),
+        ("writing the files (profiles thinned)", write),
+        ("writing the files (every cell)", write_all),
+        ("whole run (rating + writing)", rate + write),
+    ] {
+        println!("{label:<44} {t:>9.4} {:>12.2}", t / solve);
+    }
+}
+
 fn main() {
+    whole_run_table();
     network_table();
     solve_table("water-cooler.toml");
     solve_table("co2-gas-cooler.toml");

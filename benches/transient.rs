@@ -1,59 +1,171 @@
-//! Transient benchmark: 10 simulated minutes of a cold start of the water demo (everything
-//! at 15 °C, hot water arriving at t = 0) at 200 and 2 000 cells, explicit (Dormand–Prince)
-//! and implicit (BDF2). Prints wall time, steps, right-hand sides, Jacobians and the cost per
-//! cell-step. Run: `cargo bench --bench transient` (figures recorded in DEVELOPERS.md).
-//! `HXGRID_BENCH_QUICK=1` runs the explicit 2 000-cell case for 60 s only.
+//! Transient benchmark: a cold start of the water demo (everything at 15 °C, hot water
+//! arriving at t = 0), 640 s simulated, outputs every second, as a user's `[transient]`
+//! table would ask.
+//!
+//! Prints, for each setting: wall time, the counts (accepted and rejected steps, Newton
+//! iterations, factorisations, right-hand sides), the cost per cell-step, and the largest
+//! outlet error over all output times against two references: the same grid integrated
+//! with tolerances 10⁴ times tighter (the time-integration error), and a fine grid of the
+//! same scheme (the total error a user sees). Run: `cargo bench --bench transient`
+//! (figures recorded in benches/README.md).
+//!
+//! References are computed once and kept in `target/transient-bench-references.json` (they
+//! are the converged solutions of the discrete problems, whichever build computes them), so
+//! the same table can be run on an older build for before/after figures.
+//! `HXGRID_BENCH_QUICK=1` skips the scaling table's 20 000-cell rows.
 
-use hxgrid::solve::transient::{simulate, Initial, Inputs, Integrator, TransientSettings};
+use hxgrid::model::{Exchanger, Scheme};
+use hxgrid::solve::transient::{simulate, Initial, Inputs, Integrator, Signal, TransientRun, TransientSettings};
 use hxgrid::solve::SilentObserver;
 use std::time::Instant;
 
+struct Setting {
+    label: String,
+    scheme: Scheme,
+    cells: usize,
+    integrator: Integrator,
+    atol: f64,
+    rtol: f64,
+}
+
+fn settings(ex: &Exchanger, s: &Setting, duration: f64) -> TransientSettings {
+    TransientSettings {
+        cells: s.cells,
+        duration_s: duration,
+        output_interval_s: 1.0,
+        integrator: s.integrator,
+        atol_k: s.atol,
+        rtol: s.rtol,
+        initial: Initial::Uniform(15.0),
+        wall_heat_capacity_j_mk: 7900.0 * 500.0 * ex.wall.cross_section_m2(),
+        ..Default::default()
+    }
+}
+
+fn run(ex: &Exchanger, inputs: &Inputs, s: &Setting, duration: f64) -> (TransientRun, f64) {
+    let mut e = ex.clone();
+    e.scheme = s.scheme;
+    let t0 = Instant::now();
+    let r = simulate(&e, inputs, &settings(&e, s, duration), &mut SilentObserver).expect("run");
+    (r, t0.elapsed().as_secs_f64())
+}
+
+/// Outlet series (time, hot, cold).
+type Series = Vec<(f64, f64, f64)>;
+
+fn series(r: &TransientRun) -> Series {
+    r.samples.iter().map(|s| (s.time_s, s.hot_outlet_C, s.cold_outlet_C)).collect()
+}
+
+/// Largest outlet difference over the common output times, K.
+fn max_error(a: &TransientRun, b: &Series) -> f64 {
+    series(a)
+        .iter()
+        .zip(b)
+        .map(|(p, q)| {
+            assert!((p.0 - q.0).abs() < 1e-9);
+            (p.1 - q.1).abs().max((p.2 - q.2).abs())
+        })
+        .fold(0.0, f64::max)
+}
+
+/// A time-converged reference of `scheme` at `cells`, from the cache file or computed.
+fn reference(ex: &Exchanger, inputs: &Inputs, scheme: Scheme, cells: usize, duration: f64, cache: &mut serde_json::Map<String, serde_json::Value>) -> Series {
+    let key = format!("{}-{cells}-{duration}", scheme.as_str());
+    if let Some(v) = cache.get(&key) {
+        return serde_json::from_value(v.clone()).expect("cached series");
+    }
+    let s = Setting { label: String::new(), scheme, cells, integrator: Integrator::Implicit, atol: 1e-8, rtol: 1e-10 };
+    let (r, secs) = run(ex, inputs, &s, duration);
+    println!("reference {} {cells} cells: {secs:.1} s, {} steps", scheme.as_str(), r.stats.steps);
+    let out = series(&r);
+    cache.insert(key, serde_json::to_value(&out).expect("series"));
+    out
+}
+
+fn header() {
+    println!(
+        "{:<34} {:>6} {:>9} {:>7} {:>5} {:>7} {:>6} {:>7} {:>9} {:>11} {:>11}",
+        "setting", "cells", "wall ms", "steps", "rej", "Newton", "LU", "RHS", "µs/c-step", "time err K", "total err K"
+    );
+}
+
+fn row(s: &Setting, r: &TransientRun, secs: f64, time_err: f64, total_err: Option<f64>) {
+    let st = &r.stats;
+    println!(
+        "{:<34} {:>6} {:>9.1} {:>7} {:>5} {:>7} {:>6} {:>7} {:>9.3} {:>11.2e} {:>11}",
+        s.label,
+        s.cells,
+        secs * 1e3,
+        st.steps,
+        st.rejected_steps,
+        st.newton_iterations,
+        st.jacobian_evaluations,
+        st.rhs_evaluations,
+        secs / (st.steps.max(1) * s.cells) as f64 * 1e6,
+        time_err,
+        total_err.map(|e| format!("{e:.2e}")).unwrap_or_else(|| "—".into())
+    );
+}
+
 fn main() {
     let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler.toml");
-    let case = hxgrid::case::load(&path).expect("demo case");
-    let ex = case.build();
+    let ex = hxgrid::case::load(&path).expect("demo case").build();
     let inputs = Inputs::constant(&ex);
-    let wall = 7900.0 * 500.0 * ex.wall.cross_section_m2();
     let quick = std::env::var("HXGRID_BENCH_QUICK").is_ok();
-    println!("cold start of water-cooler.toml, tolerance 1e-4 K (one core)");
-    println!(
-        "{:>7} {:>10} {:>12} {:>11} {:>9} {:>9} {:>10} {:>12} {:>16}",
-        "cells", "integrator", "simulated s", "wall s", "steps", "rejected", "Jacobians", "RHS evals", "µs per cell-step"
-    );
-    for cells in [200usize, 2000] {
-        for integrator in [Integrator::Implicit, Integrator::Explicit] {
-            let duration = if quick && cells == 2000 && integrator == Integrator::Explicit { 60.0 } else { 600.0 };
-            let settings = TransientSettings {
-                cells,
-                duration_s: duration,
-                output_interval_s: 10.0,
-                integrator,
-                initial: Initial::Uniform(15.0),
-                wall_heat_capacity_j_mk: wall,
-                ..Default::default()
-            };
+    let duration = 640.0;
+    let set = |scheme: Scheme, cells: usize, integrator: Integrator, atol: f64, rtol: f64| Setting {
+        label: format!("{} {} atol {atol:.0e} rtol {rtol:.0e}", scheme.as_str(), if integrator == Integrator::Implicit { "implicit" } else { "explicit" }),
+        scheme,
+        cells,
+        integrator,
+        atol,
+        rtol,
+    };
+    println!("cold start of water-cooler.toml, {duration} s, outputs every 1 s (one core)");
+    let cache_path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("target/transient-bench-references.json");
+    let mut cache: serde_json::Map<String, serde_json::Value> =
+        std::fs::read_to_string(&cache_path).ok().and_then(|t| serde_json::from_str(&t).ok()).unwrap_or_default();
+    // Fine-grid references, one per scheme (time-converged).
+    let fine_cells = 1600;
+    let fine: Vec<(Scheme, Series)> =
+        [Scheme::Trapezoidal, Scheme::Tvd].into_iter().map(|sc| (sc, reference(&ex, &inputs, sc, fine_cells, duration, &mut cache))).collect();
+    println!("time err: against the same grid with atol 1e-8, rtol 1e-10; total err: against {fine_cells} cells of the same scheme");
+    header();
+    for (scheme, cells) in [(Scheme::Trapezoidal, 200), (Scheme::Tvd, 200), (Scheme::Trapezoidal, 800), (Scheme::Tvd, 800)] {
+        let same = reference(&ex, &inputs, scheme, cells, duration, &mut cache);
+        let fine = &fine.iter().find(|f| f.0 == scheme).expect("fine").1;
+        let mut list = vec![];
+        for (atol, rtol) in [(1e-4, 1e-6), (1e-3, 1e-5), (1e-3, 1e-3), (1e-2, 1e-4), (1e-5, 1e-7)] {
+            list.push(set(scheme, cells, Integrator::Implicit, atol, rtol));
+        }
+        if cells == 200 && scheme == Scheme::Trapezoidal {
+            list.push(set(scheme, cells, Integrator::Explicit, 1e-4, 1e-6));
+        }
+        for s in list {
+            let (r, secs) = run(&ex, &inputs, &s, duration);
+            row(&s, &r, secs, max_error(&r, &same), Some(max_error(&r, fine)));
+        }
+    }
+    std::fs::write(&cache_path, serde_json::to_string(&cache).expect("json")).expect("write the reference cache");
+    // Scaling: cost per cell-step against N on a smooth schedule (the hot inlet ramped from
+    // the steady state over 300 s), so that the step count does not depend on N.
+    println!("\nscaling: steady start, hot inlet ramped 95 → 85 °C over 300 s, 640 s, default tolerances");
+    header();
+    let ramp = Inputs { hot_inlet_c: Signal::Ramp { start_s: 20.0, end_s: 320.0, from: 95.0, to: 85.0 }, ..Inputs::constant(&ex) };
+    for cells in [200usize, 2000, 20000] {
+        if quick && cells > 2000 {
+            continue;
+        }
+        for scheme in [Scheme::Trapezoidal, Scheme::Tvd] {
+            let s = set(scheme, cells, Integrator::Implicit, 1e-4, 1e-6);
+            let mut e = ex.clone();
+            e.scheme = scheme;
+            let mut st = settings(&e, &s, duration);
+            st.initial = Initial::Steady;
             let t0 = Instant::now();
-            let run = match simulate(&ex, &inputs, &settings, &mut SilentObserver) {
-                Ok(r) => r,
-                Err(e) => {
-                    println!("{cells:>7} {:>10} {duration:>12} failed after {:.1} s: {e}", "explicit", t0.elapsed().as_secs_f64());
-                    continue;
-                }
-            };
-            let secs = t0.elapsed().as_secs_f64();
-            let s = &run.stats;
-            println!(
-                "{:>7} {:>10} {:>12} {:>11.3} {:>9} {:>9} {:>10} {:>12} {:>16.3}",
-                cells,
-                if integrator == Integrator::Implicit { "implicit" } else { "explicit" },
-                duration,
-                secs,
-                s.steps,
-                s.rejected_steps,
-                s.jacobian_evaluations,
-                s.rhs_evaluations,
-                secs / (s.steps.max(1) * cells) as f64 * 1e6
-            );
+            let r = simulate(&e, &ramp, &st, &mut SilentObserver).expect("run");
+            row(&s, &r, t0.elapsed().as_secs_f64(), f64::NAN, None);
         }
     }
 }

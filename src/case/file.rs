@@ -196,6 +196,8 @@ pub struct TransientFile {
     pub integrator: Option<IntegratorName>,
     /// Absolute tolerance on temperatures, K.
     pub tolerance_K: Option<f64>,
+    /// Relative tolerance of the time integration (on temperatures in °C).
+    pub relative_tolerance: Option<f64>,
     pub initial: Option<InitialName>,
     pub initial_temperature_C: Option<f64>,
     pub wall_density_kg_m3: f64,

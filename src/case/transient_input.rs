@@ -148,6 +148,13 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
             format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-4", tolerance = num(tolerance)),
         );
     }
+    let relative = t.relative_tolerance.unwrap_or(TransientSettings::default().rtol);
+    if !(0.0..0.1).contains(&relative) {
+        c.fail(
+            "transient.relative_tolerance",
+            format!("{} is not valid: use 0 (absolute tolerance only) or a small positive fraction below 0.1, e.g. 1e-6", num(relative)),
+        );
+    }
     let initial = match (t.initial, t.initial_temperature_C) {
         (None | Some(InitialName::Steady), None) => Initial::Steady,
         (None | Some(InitialName::Steady), Some(_)) => {
@@ -220,9 +227,10 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
             output_interval_s: interval,
             integrator,
             atol_k: tolerance,
+            rtol: relative,
             initial,
             snapshot_times_s: snapshots,
-            // Relative tolerance, step limit, heat capacities: the documented defaults.
+            // Step limit, heat capacities: the documented defaults.
             ..TransientSettings::default()
         },
         wall_volumetric_heat_capacity: rho * cw,

@@ -3,7 +3,7 @@
 //! same cell balances with storage added.
 
 mod banded;
-mod blocktri;
+mod blockband;
 mod checks;
 mod error;
 mod jacobian;
@@ -13,7 +13,7 @@ mod steady;
 pub mod transient;
 
 pub use banded::Banded;
-pub use blocktri::BlockTridiagonal;
+pub use blockband::BlockBanded;
 /// Most cells a case may ask for.
 pub const MAX_CELLS: usize = 10_000_000;
 

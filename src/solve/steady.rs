@@ -293,17 +293,7 @@ mod tests {
                 let x: Vec<Vector3<f64>> = (0..n).map(|i| Vector3::new(80.0 - 3.0 * i as f64, 40.0 - 2.5 * i as f64, 60.0 - 2.0 * i as f64)).collect();
                 let mut jac = Jacobian::for_grid(&lay);
                 jacobian(&ex, &lay, 4.0 / n as f64, &x, &mut jac);
-                let dense = |i: usize, r: usize, j: usize, c: usize| -> Option<f64> {
-                    match &jac {
-                        Jacobian::Tri(m) => match j as isize - i as isize {
-                            -1 => Some(m.lower[i][(r, c)]),
-                            0 => Some(m.diag[i][(r, c)]),
-                            1 => Some(m.upper[i][(r, c)]),
-                            _ => None,
-                        },
-                        Jacobian::Band(m) => Some(m.get(3 * i + r, 3 * j + c)),
-                    }
-                };
+                let dense = |i: usize, r: usize, j: usize, c: usize| -> Option<f64> { Some(jac.0.get(i, r, j, c)) };
                 let mut r0 = vec![Vector3::zeros(); n];
                 let mut r1 = vec![Vector3::zeros(); n];
                 for j in 0..n {

@@ -1,35 +1,105 @@
-//! The implicit integrator: variable-step BDF2 (backward Euler first) with Newton on the
-//! steady solver's Jacobian plus storage, reused across steps while it converges fast.
+//! The implicit integrator: variable-step BDF2 (backward Euler first) with modified Newton
+//! on the steady solver's Jacobian plus storage.
+//!
+//! Cost per step is kept down three ways:
+//! - Steps are never shortened for output times: outputs come from the integrator's own
+//!   interpolant (the quadratic through the last three points, the polynomial BDF2 is built
+//!   on), so a settled run takes long steps however often it is sampled. Only input
+//!   breakpoints (where a schedule has a kink or a jump) end a step.
+//! - Modified Newton: the Jacobian and the factorised Newton matrix M = storage − b·h·J are
+//!   kept over iterations and steps. M is refactorised when b·h has moved more than 30 %
+//!   from the value it was built for (the rule of common BDF codes, e.g. CVODE), the
+//!   Jacobian is re-evaluated every 20 steps, and both are refreshed at once when Newton
+//!   converges slowly (rate above 0.9, or more than six iterations).
+//! - Work buffers live in the integrator; the exchanger for the inputs at the new time is
+//!   built once per step, not per right-hand side.
 
 use super::model::*;
 use super::*;
 use crate::solve::steady::{jacobian, Jacobian};
+use crate::solve::BlockBanded;
 use nalgebra::{DVector, Vector3};
+
+/// Refactorise when b·h differs from the factorised value by more than this fraction.
+const REFACTOR_RATIO: f64 = 0.3;
+/// Steps after which the Jacobian is evaluated afresh even while Newton converges.
+const JACOBIAN_AGE: usize = 20;
+/// Newton iterations before a step counts as not converging.
+const MAX_NEWTON: usize = 6;
+
+/// One stored point: time, temperatures (the unknowns), full state (enthalpies, wall, the
+/// two integrals).
+type Point = (f64, Vec<Vector3<f64>>, DVector<f64>);
 
 /// Variable-step BDF2 state.
 pub(super) struct Bdf2 {
     pub(super) t: f64,
     pub(super) h: f64,
-    pub(super) y: DVector<f64>,
     /// Previous state and step (None before the first step).
-    pub(super) prev: Option<(DVector<f64>, f64)>,
-    /// Temperatures at the current and previous two points (for the predictor).
-    pub(super) x_hist: Vec<(f64, Vec<Vector3<f64>>)>,
-    pub(super) jac: Option<Jacobian>,
-    pub(super) jac_age: usize,
+    prev: Option<(DVector<f64>, f64)>,
+    /// The last up to three points (predictor and dense output); the last is the current one.
+    hist: Vec<Point>,
+    /// Temperature rates at t = 0 (K/s): the first step's predictor is explicit Euler, so
+    /// its difference from backward Euler estimates the local error (h²y''/2), not the
+    /// change itself (which made a cold start begin with needlessly tiny steps).
+    rate0: Vec<Vector3<f64>>,
+    jac: Option<Jacobian>,
+    /// Steps since the Jacobian was evaluated.
+    jac_age: usize,
+    /// Factorised Newton matrix and the b·h it was built for.
+    newton: Option<(BlockBanded, f64)>,
+    /// Work buffers: rates, Newton right-hand side, the history combination.
+    r: Vec<Vector3<f64>>,
+    g: Vec<Vector3<f64>>,
+    combined: DVector<f64>,
+}
+
+pub(super) enum StepOutcome {
+    Accepted(f64),
+    Rejected(f64),
 }
 
 impl Bdf2 {
     pub(super) fn new(model: &Model, y0: &DVector<f64>, settings: &TransientSettings) -> Self {
-        // First step: a fraction of the shortest cell transit or wall time constant.
         let h0 = (settings.output_interval_s * 0.01).max(1e-6);
-        Self { t: 0.0, h: h0, y: y0.clone(), prev: None, x_hist: vec![(0.0, model.temperatures(y0))], jac: None, jac_age: 0 }
+        let n = model.n;
+        let x0 = model.temperatures(y0);
+        let e0 = model.inputs.apply(model.ex, 0.0);
+        let mut r = vec![Vector3::zeros(); n];
+        model.rates(&e0, &model.grid(&e0), &x0, &mut r);
+        let rate0 = (0..n)
+            .map(|i| {
+                Vector3::new(
+                    r[i][0] / (model.mass[0][i] * model.ex.hot.fluid.props(x0[i][0]).cp),
+                    r[i][1] / (model.mass[1][i] * model.ex.cold.fluid.props(x0[i][1]).cp),
+                    r[i][2] / model.wall_capacity,
+                )
+            })
+            .collect();
+        Self {
+            t: 0.0,
+            h: h0,
+            prev: None,
+            hist: vec![(0.0, x0, y0.clone())],
+            rate0,
+            jac: None,
+            jac_age: 0,
+            newton: None,
+            r: vec![Vector3::zeros(); n],
+            g: vec![Vector3::zeros(); n],
+            combined: DVector::zeros(model.len()),
+        }
     }
 
-    pub(super) fn advance_to(&mut self, model: &Model, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
-        // `try_step` moves self.t itself on an accepted step; the shared loop keeps its own.
+    /// The current state.
+    pub(super) fn y(&self) -> &DVector<f64> {
+        &self.hist.last().expect("a state").2
+    }
+
+    /// Take one accepted step towards `stop` (not past it).
+    pub(super) fn step(&mut self, model: &Model, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
         let (mut t, mut h) = (self.t, self.h);
-        advance_implicit(&mut t, &mut h, stop, settings, stats, |step, stats| {
+        step_once(&mut t, &mut h, stop, settings, stats, |step, stats| {
             Ok(match self.try_step(model, step, settings, stats)? {
                 StepOutcome::Accepted(next) => Ok(next),
                 StepOutcome::Rejected(next) => Err(next),
@@ -38,6 +108,128 @@ impl Bdf2 {
         self.t = t;
         self.h = h;
         Ok(())
+    }
+
+    /// Dense output at `t` within the last step: the state, its temperatures and the fastest
+    /// wall rate (K/s, signed), from the quadratic through the last three points.
+    pub(super) fn dense(&self, model: &Model, t: f64) -> (DVector<f64>, Vec<Vector3<f64>>, f64) {
+        let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
+        let (w, dw) = (lagrange_weights(&times, t), lagrange_derivative_weights(&times, t));
+        let n = model.n;
+        let mut y = DVector::zeros(model.len());
+        let mut x = vec![Vector3::zeros(); n];
+        for (p, &wj) in self.hist.iter().zip(&w) {
+            y.axpy(wj, &p.2, 1.0);
+            for (xi, pi) in x.iter_mut().zip(&p.1) {
+                *xi += pi * wj;
+            }
+        }
+        let mut max_rate = 0.0f64;
+        for i in 0..n {
+            let rate: f64 = self.hist.iter().zip(&dw).map(|(p, d)| p.2[2 * n + i] * d).sum();
+            if rate.abs() > max_rate.abs() {
+                max_rate = rate;
+            }
+        }
+        (y, x, max_rate)
+    }
+
+    /// Evaluate the Jacobian (if missing or old) and factorise the Newton matrix (if b·h has
+    /// moved or the Jacobian is new) at temperatures `x`. Err(()) if the matrix is singular.
+    fn prepare(
+        &mut self,
+        model: &Model,
+        e: &crate::model::Exchanger,
+        grid: &crate::model::Grid,
+        x: &[Vector3<f64>],
+        bh: f64,
+        stats: &mut Stats,
+    ) -> Result<(), ()> {
+        let n = model.n;
+        let mut stale = match &self.newton {
+            Some((_, bh0)) => (bh / bh0 - 1.0).abs() > REFACTOR_RATIO,
+            None => true,
+        };
+        if self.jac.is_none() || self.jac_age >= JACOBIAN_AGE {
+            let mut j = self.jac.take().unwrap_or_else(|| Jacobian::for_grid(grid));
+            jacobian(e, grid, model.dx, x, &mut j);
+            stats.jacobian_evaluations += 1;
+            self.jac = Some(j);
+            self.jac_age = 0;
+            stale = true;
+        }
+        if !stale {
+            return Ok(());
+        }
+        let jac = &self.jac.as_ref().expect("evaluated above").0;
+        let mut m = self.newton.take().map(|(m, _)| m).unwrap_or_else(|| BlockBanded::zeros(n, jac.reach()));
+        m.assign_scaled(jac, -bh);
+        // Storage on each cell's unknown; S flips the cold row so the Jacobian is the steady one.
+        for (i, xi) in x.iter().enumerate() {
+            let d = m.block_mut(i, 0);
+            d[(0, 0)] += model.mass[0][i] * model.ex.hot.fluid.props(xi[0]).cp;
+            d[(1, 1)] -= model.mass[1][i] * model.ex.cold.fluid.props(xi[1]).cp;
+            d[(2, 2)] += model.wall_capacity;
+        }
+        stats.factorisations += 1;
+        m.factor().map_err(|_| ())?;
+        self.newton = Some((m, bh));
+        Ok(())
+    }
+
+    /// Modified Newton from `x` (updated in place): true if it converged.
+    #[allow(clippy::too_many_arguments)]
+    fn iterate(
+        &mut self,
+        model: &Model,
+        e: &crate::model::Exchanger,
+        grid: &crate::model::Grid,
+        x: &mut [Vector3<f64>],
+        bh: f64,
+        tol: f64,
+        stats: &mut Stats,
+    ) -> bool {
+        let n = model.n;
+        let Some((m, _)) = &self.newton else { return false };
+        let (hf, cf) = (&model.ex.hot.fluid, &model.ex.cold.fluid);
+        let hist = &self.combined;
+        let mut previous = f64::INFINITY;
+        for k in 0..MAX_NEWTON {
+            stats.newton_iterations += 1;
+            stats.rhs_evaluations += 1;
+            model.rates(e, grid, x, &mut self.r);
+            // G = S·storage − b h rates.
+            for i in 0..n {
+                let r = self.r[i];
+                self.g[i] = Vector3::new(
+                    model.mass[0][i] * (hf.enthalpy(x[i][0]) - hist[i]) - bh * r[0],
+                    -(model.mass[1][i] * (cf.enthalpy(x[i][1]) - hist[n + i]) - bh * r[1]),
+                    model.wall_capacity * (x[i][2] - hist[2 * n + i]) - bh * r[2],
+                );
+            }
+            if m.solve_factored(&mut self.g).is_err() {
+                return false;
+            }
+            let mut delta = 0.0f64;
+            for (xi, gi) in x.iter_mut().zip(&self.g) {
+                *xi -= gi;
+                delta = delta.max(gi.abs().max());
+            }
+            if !delta.is_finite() {
+                return false;
+            }
+            if delta < tol {
+                return true;
+            }
+            if k > 0 {
+                let rate = delta / previous;
+                if rate >= 0.9 {
+                    return false;
+                }
+            }
+            previous = delta;
+        }
+        false
     }
 
     pub(super) fn try_step(&mut self, model: &Model, h: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<StepOutcome, TransientError> {
@@ -51,87 +243,63 @@ impl Bdf2 {
                 ((1.0 + w).powi(2) / (1.0 + 2.0 * w), -(w * w) / (1.0 + 2.0 * w), (1.0 + w) / (1.0 + 2.0 * w))
             }
         };
-        let hist: DVector<f64> = match &self.prev {
-            None => self.y.clone() * a1,
-            Some((yp, _)) => &self.y * a1 + yp * a2,
-        };
+        self.combined.copy_from(&self.hist.last().expect("a state").2);
+        self.combined *= a1;
+        if let Some((yp, _)) = &self.prev {
+            self.combined.axpy(a2, yp, 1.0);
+        }
         // Predictor: polynomial extrapolation of the temperatures through the history.
-        let predicted = extrapolate(&self.x_hist, t1);
+        let predicted =
+            if self.hist.len() == 1 { self.hist[0].1.iter().zip(&self.rate0).map(|(x, r)| x + r * h).collect() } else { extrapolate(&self.hist, t1) };
         let e1 = model.inputs.apply(model.ex, t1);
         let grid = model.grid(&e1);
-        let mut x = predicted.clone();
-        let mut r = vec![Vector3::zeros(); n];
         let bh = b * h;
-        let storage = |x: &[Vector3<f64>], i: usize| -> Vector3<f64> {
-            Vector3::new(
-                model.mass[0][i] * (model.ex.hot.fluid.enthalpy(x[i][0]) - hist[i]),
-                model.mass[1][i] * (model.ex.cold.fluid.enthalpy(x[i][1]) - hist[n + i]),
-                model.wall_capacity * (x[i][2] - hist[2 * n + i]),
-            )
-        };
-        let reuse = self.jac.is_some() && self.jac_age < 20;
-        if !reuse {
-            let mut j = Jacobian::for_grid(&grid);
-            jacobian(&e1, &grid, model.dx, &x, &mut j);
-            stats.jacobian_evaluations += 1;
-            self.jac = Some(j);
-            self.jac_age = 0;
-        }
+        // Newton stops well inside the error tolerance, and above the round-off of the
+        // enthalpy differences (about 1e-13 of the temperatures).
+        let t_scale = predicted.iter().map(|v| v.abs().max()).fold(1.0, f64::max);
+        let tol = (1e-3 * (settings.atol_k + settings.rtol * t_scale)).max(1e-12 * t_scale);
+        let mut x = predicted.clone();
         let mut converged = false;
-        for iteration in 0..8 {
-            stats.newton_iterations += 1;
-            stats.rhs_evaluations += 1;
-            model.rates(t1, &x, &mut r);
-            // G = S·storage − b h residual; S flips the cold row so the Jacobian is the steady one.
-            let mut g: Vec<Vector3<f64>> = (0..n)
-                .map(|i| {
-                    let s = storage(&x, i);
-                    Vector3::new(s[0] - bh * r[i][0], -(s[1] - bh * r[i][1]), s[2] - bh * r[i][2])
-                })
-                .collect();
-            let scale = g.iter().map(|v| v.abs().max()).fold(0.0, f64::max);
-            let mut newton = self.jac.clone().expect("jacobian set above").scaled(-bh);
-            for (i, xi) in x.iter().enumerate().take(n) {
-                newton.add_diagonal(i, 0, model.mass[0][i] * model.ex.hot.fluid.props(xi[0]).cp);
-                newton.add_diagonal(i, 1, -model.mass[1][i] * model.ex.cold.fluid.props(xi[1]).cp);
-                newton.add_diagonal(i, 2, model.wall_capacity);
+        for attempt in 0..2 {
+            if attempt > 0 {
+                // Slow with an old Jacobian or factorisation: refresh both and retry.
+                if self.jac_age == 0 && self.newton.as_ref().is_some_and(|(_, b0)| *b0 == bh) {
+                    break;
+                }
+                self.jac = None;
+                x.copy_from_slice(&predicted);
             }
-            if newton.solve(&mut g).is_err() {
-                break;
+            if self.prepare(model, &e1, &grid, &x, bh, stats).is_err() {
+                self.jac = None;
+                self.newton = None;
+                return Ok(StepOutcome::Rejected(h * 0.5));
             }
-            let mut largest = 0.0f64;
-            for i in 0..n {
-                x[i] -= g[i];
-                largest = largest.max(g[i].abs().max());
-            }
-            if !largest.is_finite() {
-                break;
-            }
-            if largest < 1e-3 * settings.atol_k || (scale == 0.0 && iteration > 0) {
+            if self.iterate(model, &e1, &grid, &mut x, bh, tol, stats) {
                 converged = true;
                 break;
-            }
-            if iteration >= 3 && self.jac_age > 0 {
-                break; // slow with an old Jacobian: refresh it and retry with a smaller step
             }
         }
         if !converged {
             self.jac = None;
+            self.newton = None;
             return Ok(StepOutcome::Rejected(h * 0.5));
         }
         // Error estimate from the predictor–corrector difference (Milne's device; the
         // constant 2/11 is that of constant-step BDF2 with a quadratic predictor).
-        let order_known = self.x_hist.len() >= 3;
-        let mut err = 0.0f64;
+        let constant = if self.hist.len() >= 3 { 2.0 / 11.0 } else { 0.5 };
+        let (mut err, mut local_k) = (0.0f64, 0.0f64);
         for i in 0..n {
             for c in 0..3 {
-                let tol = settings.atol_k + settings.rtol * x[i][c].abs();
-                err = err.max((x[i][c] - predicted[i][c]).abs() * if order_known { 2.0 / 11.0 } else { 0.5 } / tol);
+                let e = (x[i][c] - predicted[i][c]).abs() * constant;
+                local_k = local_k.max(e);
+                err = err.max(e / (settings.atol_k + settings.rtol * x[i][c].abs()));
             }
         }
         if err > 1.0 {
             return Ok(StepOutcome::Rejected(h * (0.9 * err.powf(-1.0 / 3.0)).clamp(0.1, 0.5)));
         }
+        stats.largest_local_error_k = stats.largest_local_error_k.max(local_k);
+        stats.accumulated_local_error_k += local_k;
         // Accept: update the enthalpy states and the two integrals with the same formula.
         let (net, hot) = model.inflows(&e1, &grid, &x);
         let mut y1 = DVector::zeros(model.len());
@@ -140,13 +308,13 @@ impl Bdf2 {
             y1[n + i] = model.ex.cold.fluid.enthalpy(x[i][1]);
             y1[2 * n + i] = x[i][2];
         }
-        y1[3 * n] = hist[3 * n] + bh * net;
-        y1[3 * n + 1] = hist[3 * n + 1] + bh * hot;
-        self.prev = Some((std::mem::replace(&mut self.y, y1), h));
+        y1[3 * n] = self.combined[3 * n] + bh * net;
+        y1[3 * n + 1] = self.combined[3 * n + 1] + bh * hot;
+        self.prev = Some((self.y().clone(), h));
         self.t = t1;
-        self.x_hist.push((t1, x));
-        if self.x_hist.len() > 3 {
-            self.x_hist.remove(0);
+        self.hist.push((t1, x, y1));
+        if self.hist.len() > 3 {
+            self.hist.remove(0);
         }
         self.jac_age += 1;
         let grow = if err > 0.0 { (0.9 * err.powf(-1.0 / 3.0)).clamp(0.2, 2.0) } else { 2.0 };
@@ -154,17 +322,11 @@ impl Bdf2 {
     }
 }
 
-pub(super) enum StepOutcome {
-    Accepted(f64),
-    Rejected(f64),
-}
-
 /// Lagrange extrapolation of the stored temperature profiles to time `t`.
-pub(super) fn extrapolate(hist: &[(f64, Vec<Vector3<f64>>)], t: f64) -> Vec<Vector3<f64>> {
-    let k = hist.len();
+fn extrapolate(hist: &[Point], t: f64) -> Vec<Vector3<f64>> {
     let weights = lagrange_weights(&hist.iter().map(|h| h.0).collect::<Vec<_>>(), t);
     let n = hist[0].1.len();
-    (0..n).map(|i| (0..k).fold(Vector3::zeros(), |acc, j| acc + hist[j].1[i] * weights[j])).collect()
+    (0..n).map(|i| hist.iter().zip(&weights).fold(Vector3::zeros(), |acc, (p, w)| acc + p.1[i] * *w)).collect()
 }
 
 /// [`extrapolate`] for flat state vectors.
@@ -176,7 +338,40 @@ pub(super) fn extrapolate_flat(hist: &[(f64, Vec<f64>)], t: f64) -> Vec<f64> {
 }
 
 /// Weights of the Lagrange polynomial through the times `ts`, evaluated at `t`.
-fn lagrange_weights(ts: &[f64], t: f64) -> Vec<f64> {
+pub(super) fn lagrange_weights(ts: &[f64], t: f64) -> Vec<f64> {
     let k = ts.len();
     (0..k).map(|j| (0..k).filter(|&m| m != j).fold(1.0, |w, m| w * (t - ts[m]) / (ts[j] - ts[m]))).collect()
+}
+
+/// Weights of the derivative of the Lagrange polynomial through `ts`, at `t`.
+pub(super) fn lagrange_derivative_weights(ts: &[f64], t: f64) -> Vec<f64> {
+    let k = ts.len();
+    (0..k)
+        .map(|j| {
+            let denom: f64 = (0..k).filter(|&m| m != j).map(|m| ts[j] - ts[m]).product();
+            // d/dt Π_{m≠j} (t − t_m) = Σ_l Π_{m≠j,l} (t − t_m).
+            let numer: f64 = (0..k).filter(|&l| l != j).map(|l| (0..k).filter(|&m| m != j && m != l).map(|m| t - ts[m]).product::<f64>()).sum();
+            numer / denom
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The interpolant reproduces a quadratic and its derivative exactly.
+    #[test]
+    fn lagrange_weights_reproduce_a_quadratic() {
+        let f = |t: f64| 3.0 - 2.0 * t + 0.5 * t * t;
+        let ts = [1.0, 2.5, 4.0];
+        for t in [1.7, 3.2, 4.0] {
+            let v: f64 = lagrange_weights(&ts, t).iter().zip(&ts).map(|(w, &s)| w * f(s)).sum();
+            let d: f64 = lagrange_derivative_weights(&ts, t).iter().zip(&ts).map(|(w, &s)| w * f(s)).sum();
+            assert!((v - f(t)).abs() < 1e-12 && (d - (-2.0 + t)).abs() < 1e-12, "{t}: {v} {d}");
+        }
+        // Two points: a line.
+        let d = lagrange_derivative_weights(&[0.0, 2.0], 1.0);
+        assert!((d[0] + 0.5).abs() < 1e-15 && (d[1] - 0.5).abs() < 1e-15);
+    }
 }

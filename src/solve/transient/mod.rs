@@ -164,6 +164,17 @@ pub struct Stats {
     pub rhs_evaluations: usize,
     /// Newton iterations (implicit).
     pub newton_iterations: usize,
+    /// Factorisations of the Newton matrix (implicit).
+    pub factorisations: usize,
+    /// Largest local error estimate of any accepted step, over all temperatures, K
+    /// (implicit; each step keeps it below tolerance_K + relative_tolerance·|T|).
+    #[serde(rename = "largest_local_error_K")]
+    pub largest_local_error_k: f64,
+    /// Sum of the accepted steps' largest local error estimates, K: a bound on the
+    /// accumulated time-integration error for a run that damps disturbances (pessimistic:
+    /// an exchanger forgets errors older than its residence and wall time constants).
+    #[serde(rename = "accumulated_local_error_K")]
+    pub accumulated_local_error_k: f64,
 }
 
 /// The result of a transient run.
@@ -350,9 +361,10 @@ impl TransientRun {
     }
 }
 
-/// Advance an implicit integrator from `*t` to `stop`: `try_step(h)` gives Ok(next step) for
-/// an accepted step and Err(next step) for a rejected one.
-fn advance_implicit(
+/// Take one accepted step of an implicit integrator from `*t` towards `stop` (never past
+/// it): `try_step(h)` gives Ok(next step) for an accepted step and Err(next step) for a
+/// rejected one.
+fn step_once(
     t: &mut f64,
     h: &mut f64,
     stop: f64,
@@ -360,13 +372,21 @@ fn advance_implicit(
     stats: &mut Stats,
     mut try_step: impl FnMut(f64, &mut Stats) -> Result<Result<f64, f64>, TransientError>,
 ) -> Result<(), TransientError> {
-    while *t < stop - 1e-12 * stop.max(1.0) {
-        let step = h.min(stop - *t);
-        match try_step(step, stats)? {
+    loop {
+        // Land on `stop` rather than leave a sliver of a step before it.
+        let left = stop - *t;
+        let step = if *h >= left * 0.999 { left } else { h.min(left) };
+        let result = try_step(step, stats)?;
+        if stats.steps + stats.rejected_steps > settings.max_steps {
+            return Err(TransientError::Stalled { integrator: "implicit", time_s: *t, reason: format!("more than {} steps", settings.max_steps) });
+        }
+        match result {
             Ok(next) => {
                 stats.steps += 1;
-                *t += step;
-                *h = next;
+                *t = if step == left { stop } else { *t + step };
+                // A step cut short to land on `stop` does not shrink the next one.
+                *h = if step < *h { next.max(*h) } else { next };
+                return Ok(());
             }
             Err(next) => {
                 stats.rejected_steps += 1;
@@ -376,12 +396,18 @@ fn advance_implicit(
                 }
             }
         }
-        if stats.steps + stats.rejected_steps > settings.max_steps {
-            return Err(TransientError::Stalled { integrator: "implicit", time_s: *t, reason: format!("more than {} steps", settings.max_steps) });
-        }
     }
-    *t = stop;
-    Ok(())
+}
+
+/// Where implicit steps must end: each input breakpoint inside the run (a schedule's kink or
+/// jump) and the end.
+fn hard_stops(inputs: &Inputs, settings: &TransientSettings) -> Vec<f64> {
+    let t_end = settings.duration_s;
+    let mut stops: Vec<f64> = inputs.breakpoints().into_iter().filter(|&b| b > 0.0 && b < t_end).collect();
+    stops.push(t_end);
+    stops.sort_by(|a, b| a.total_cmp(b));
+    stops.dedup_by(|a, b| (*a - *b).abs() < 1e-12 * t_end.max(1.0));
+    stops
 }
 
 /// Run a transient simulation of `ex` under `inputs`.
@@ -438,8 +464,7 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
     let bounds = second_law_bounds(inputs, &x0, settings.atol_k);
     // Ok(false): a physical limit was reached at this output; the run ends here, with its
     // results up to the output before.
-    let record = |run: &mut TransientRun, t: f64, y: &DVector<f64>, model: &Model| -> Result<bool, TransientError> {
-        let (sample, snap) = model.sample(t, y);
+    let record = |run: &mut TransientRun, t: f64, (sample, snap): (Sample, Snapshot), model: &Model| -> Result<bool, TransientError> {
         if let Err(e) = model.check(t, &snap) {
             run.stop_on(t, e)?;
             return Ok(false);
@@ -448,7 +473,7 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
         run.keep(t, sample, snap, settings);
         Ok(true)
     };
-    if !record(&mut run, 0.0, &y, &model)? {
+    if !record(&mut run, 0.0, model.sample(0.0, &y), &model)? {
         return Ok(run);
     }
     // Outputs are sorted: look up the nearest by bisection (a linear scan made long runs O(n²)).
@@ -467,7 +492,7 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
                 y = y1;
                 t = stop;
                 if is_output(t) {
-                    if !record(&mut run, t, &y, &model)? {
+                    if !record(&mut run, t, model.sample(t, &y), &model)? {
                         break;
                     }
                     observer.progress(t, t_end);
@@ -479,13 +504,21 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
         }
         Integrator::Implicit => {
             let mut bdf = Bdf2::new(&model, &y, settings);
-            for &stop in &stops {
-                bdf.advance_to(&model, stop, settings, &mut run.stats)?;
-                if is_output(stop) {
-                    if !record(&mut run, stop, &bdf.y, &model)? {
-                        break;
+            let eps = 1e-12 * t_end.max(1.0);
+            let mut next = outputs.partition_point(|&o| o <= eps);
+            'run: for stop in hard_stops(inputs, settings) {
+                while bdf.t < stop - eps {
+                    bdf.step(&model, stop, settings, &mut run.stats)?;
+                    while next < outputs.len() && outputs[next] <= bdf.t + eps {
+                        let t = outputs[next];
+                        // At a step's end the interpolant's weights are exactly (0, 0, 1).
+                        let (yt, xt, rate) = bdf.dense(&model, t.min(bdf.t));
+                        if !record(&mut run, t, model.sample_from(t, &yt, &xt, rate), &model)? {
+                            break 'run;
+                        }
+                        observer.progress(t, t_end);
+                        next += 1;
                     }
-                    observer.progress(stop, t_end);
                 }
             }
         }

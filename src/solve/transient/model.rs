@@ -35,16 +35,13 @@ impl Model<'_> {
         Grid { arrangement: e.arrangement, n: self.n, scheme: e.scheme, hot_in_c: e.hot.inlet_c, cold_in_c: e.cold.inlet_c }
     }
 
-    /// Storage-form right-hand side: per cell [hot, −cold, wall] residuals (W) and the two
-    /// inflow rates (W).
-    pub(super) fn rates(&self, t: f64, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) -> (f64, f64) {
-        let e = self.inputs.apply(self.ex, t);
-        let g = self.grid(&e);
+    /// Storage-form right-hand side for the inputs `e` on grid `g` (both for the time of the
+    /// call; built once per step, not per call): per cell [hot, −cold, wall] residuals (W).
+    pub(super) fn rates(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) {
         for (i, ri) in r.iter_mut().enumerate() {
             let res = e.cell(self.dx, &g.cell_temps(x, i)).balance.steady_residual();
             *ri = Vector3::new(res[0], -res[1], res[2]);
         }
-        self.inflows(&e, &g, x)
     }
 
     /// (net enthalpy inflow of both streams, hot duty), W.
@@ -61,7 +58,10 @@ impl Model<'_> {
         let n = self.n;
         let x = self.temperatures(y);
         let mut r = vec![Vector3::zeros(); n];
-        let (net, hot) = self.rates(t, &x, &mut r);
+        let e = self.inputs.apply(self.ex, t);
+        let g = self.grid(&e);
+        self.rates(&e, &g, &x, &mut r);
+        let (net, hot) = self.inflows(&e, &g, &x);
         for i in 0..n {
             dy[i] = r[i][0] / self.mass[0][i];
             dy[n + i] = r[i][1] / self.mass[1][i];
@@ -71,18 +71,26 @@ impl Model<'_> {
         dy[3 * n + 1] = hot;
     }
 
+    /// The output at `t` from the state `y` alone (the explicit integrator's outputs: the
+    /// wall rates come from one right-hand side).
     pub(super) fn sample(&self, t: f64, y: &DVector<f64>) -> (Sample, Snapshot) {
         let n = self.n;
-        let x = self.temperatures(y);
-        let e = self.inputs.apply(self.ex, t);
-        let g = self.grid(&e);
-        let (hot_faces, cold_faces) = g.faces(&x);
         let mut dy = DVector::zeros(self.len());
         self.derivative(t, y, &mut dy);
+        let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
+        self.sample_from(t, y, &self.temperatures(y), max_rate)
+    }
+
+    /// The output at `t` from the state `y`, its temperatures `x` and the fastest wall rate
+    /// (K/s, signed): what dense output gives without a right-hand side.
+    pub(super) fn sample_from(&self, t: f64, y: &DVector<f64>, x: &[Vector3<f64>], max_rate: f64) -> (Sample, Snapshot) {
+        let n = self.n;
+        let e = self.inputs.apply(self.ex, t);
+        let g = self.grid(&e);
+        let (hot_faces, cold_faces) = g.faces(x);
         let outlets = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
         let fluid_energy: f64 = (0..n).map(|i| self.mass[0][i] * y[i] + self.mass[1][i] * y[n + i]).sum();
         let wall: Vec<f64> = (0..n).map(|i| y[2 * n + i]).collect();
-        let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
         let wall_energy = wall.iter().map(|t| self.wall_capacity * t).sum();
         let sample = Sample::at(&e, t, outlets, fluid_energy, wall_energy, &wall, max_rate, [y[3 * n], y[3 * n + 1]]);
         (sample, Snapshot { time_s: t, hot_faces_c: hot_faces, cold_faces_c: cold_faces, wall_c: wall })

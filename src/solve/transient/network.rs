@@ -62,17 +62,21 @@ impl NetModel<'_> {
         (hot + cold, hot)
     }
 
-    fn sample(&self, t: f64, z: &[f64], integrals: [f64; 2]) -> (Sample, Snapshot) {
+    /// The output at `t`; `max_rate` is the fastest wall rate (K/s, signed) where the
+    /// integrator's interpolant gives it, else one residual evaluation does.
+    fn sample(&self, t: f64, z: &[f64], integrals: [f64; 2], max_rate: Option<f64>) -> (Sample, Snapshot) {
         let e = self.inputs.apply(self.ex, t);
         let sys = self.system(&e);
         let nn = self.net.nodes.len();
-        let mut r = vec![0.0; z.len()];
-        sys.residuals(z, &mut r);
         let outlets = (z[self.net.outlet[0]], z[self.net.outlet[1]]);
         let mut stored = Vec::new();
         self.stored(z, &mut stored);
         let walls = &z[nn..];
-        let max_rate = (0..walls.len()).map(|k| r[nn + k] / self.wall_cap[k]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
+        let max_rate = max_rate.unwrap_or_else(|| {
+            let mut r = vec![0.0; z.len()];
+            sys.residuals(z, &mut r);
+            (0..walls.len()).map(|k| r[nn + k] / self.wall_cap[k]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a })
+        });
         let sample = Sample::at(&e, t, outlets, stored[..nn].iter().sum(), stored[nn..].iter().sum(), walls, max_rate, integrals);
         let (nodes, _) = z.split_at(nn);
         let cells: Vec<_> = (0..self.net.cells.len()).map(|k| temps(self.net, e.scheme, sys.inlet, nodes, walls, k)).collect();
@@ -140,8 +144,10 @@ struct NetBdf {
     stored: Vec<f64>,
     prev: Option<(Vec<f64>, [f64; 2], f64)>,
     integrals: [f64; 2],
-    /// Temperatures at up to three points (for the predictor).
+    /// Temperatures at up to three points (for the predictor and dense output).
     hist: Vec<(f64, Vec<f64>)>,
+    /// The two integrals at the same points.
+    ints: Vec<[f64; 2]>,
 }
 
 impl NetBdf {
@@ -149,12 +155,37 @@ impl NetBdf {
         &self.hist.last().expect("a state").1
     }
 
-    fn advance_to(&mut self, m: &NetModel, lin: &mut Linear, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
+    /// One accepted step towards `stop` (not past it).
+    fn step(&mut self, m: &NetModel, lin: &mut Linear, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
         let (mut t, mut h) = (self.t, self.h);
-        advance_implicit(&mut t, &mut h, stop, settings, stats, |step, stats| self.try_step(m, lin, step, settings, stats))?;
+        step_once(&mut t, &mut h, stop, settings, stats, |step, stats| self.try_step(m, lin, step, settings, stats))?;
         self.h = h;
         self.t = t;
         Ok(())
+    }
+
+    /// Dense output at `t` within the last step (the quadratic through the last three
+    /// points): temperatures, integrals and the fastest wall rate, K/s.
+    fn dense(&self, nn: usize, t: f64) -> (Vec<f64>, [f64; 2], f64) {
+        let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
+        let (w, dw) = (super::bdf2::lagrange_weights(&times, t), super::bdf2::lagrange_derivative_weights(&times, t));
+        let mut z = vec![0.0; self.hist[0].1.len()];
+        let mut ints = [0.0; 2];
+        for ((p, i), &wj) in self.hist.iter().zip(&self.ints).zip(&w) {
+            for (zi, pi) in z.iter_mut().zip(&p.1) {
+                *zi += wj * pi;
+            }
+            ints[0] += wj * i[0];
+            ints[1] += wj * i[1];
+        }
+        let mut max_rate = 0.0f64;
+        for k in nn..z.len() {
+            let rate: f64 = self.hist.iter().zip(&dw).map(|(p, d)| p.1[k] * d).sum();
+            if rate.abs() > max_rate.abs() {
+                max_rate = rate;
+            }
+        }
+        (z, ints, max_rate)
     }
 
     /// One step of length `h`: Ok(next step) if accepted, Err(next step) if rejected.
@@ -254,8 +285,10 @@ impl NetBdf {
         self.integrals = new_int;
         self.t = t1;
         self.hist.push((t1, z));
+        self.ints.push(new_int);
         if self.hist.len() > 3 {
             self.hist.remove(0);
+            self.ints.remove(0);
         }
         let grow = if err > 0.0 { (0.9 * err.powf(-1.0 / 3.0)).clamp(0.2, 2.0) } else { 2.0 };
         Ok(Ok(h * grow))
@@ -330,21 +363,28 @@ pub fn simulate_network(
     let bounds = (lo - margin, hi + margin);
 
     let t_end = settings.duration_s;
-    let stops = output_stops(inputs, settings);
+    let outputs = output_stops(inputs, settings);
 
     let mut stored0 = Vec::new();
     model.stored(&z0, &mut stored0);
-    let mut bdf =
-        NetBdf { t: 0.0, h: (settings.output_interval_s * 0.01).max(1e-6), stored: stored0, prev: None, integrals: [0.0, 0.0], hist: vec![(0.0, z0)] };
+    let mut bdf = NetBdf {
+        t: 0.0,
+        h: (settings.output_interval_s * 0.01).max(1e-6),
+        stored: stored0,
+        prev: None,
+        integrals: [0.0, 0.0],
+        hist: vec![(0.0, z0)],
+        ints: vec![[0.0, 0.0]],
+    };
     let mut run = TransientRun {
         samples: Vec::new(),
         snapshots: Vec::new(),
-        final_snapshot: model.sample(0.0, bdf.z(), [0.0, 0.0]).1,
+        final_snapshot: model.sample(0.0, bdf.z(), [0.0, 0.0], None).1,
         stats: Stats::default(),
         cells,
         stopped: None,
     };
-    let record = |run: &mut TransientRun, t: f64, z: &[f64], integrals: [f64; 2]| -> Result<bool, TransientError> {
+    let record = |run: &mut TransientRun, t: f64, z: &[f64], integrals: [f64; 2], rate: Option<f64>| -> Result<bool, TransientError> {
         match model.check(t, z, bounds) {
             Err(TransientError::Solve(e)) => {
                 run.stop_on(t, e)?;
@@ -353,20 +393,28 @@ pub fn simulate_network(
             Err(other) => return Err(other),
             Ok(()) => {}
         }
-        let (sample, snap) = model.sample(t, z, integrals);
+        let (sample, snap) = model.sample(t, z, integrals, rate);
         run.keep(t, sample, snap, settings);
         Ok(true)
     };
-    if !record(&mut run, 0.0, bdf.z(), [0.0, 0.0])? {
+    if !record(&mut run, 0.0, bdf.z(), [0.0, 0.0], None)? {
         return Ok(NetworkRun { run, network: net.clone() });
     }
-    for &stop in &stops {
-        bdf.advance_to(&model, &mut lin, stop, settings, &mut run.stats)?;
-        let z = bdf.z().to_vec();
-        if !record(&mut run, stop, &z, bdf.integrals)? {
-            break;
+    let eps = 1e-12 * t_end.max(1.0);
+    let mut next = outputs.partition_point(|&o| o <= eps);
+    'run: for stop in hard_stops(inputs, settings) {
+        while bdf.t < stop - eps {
+            bdf.step(&model, &mut lin, stop, settings, &mut run.stats)?;
+            while next < outputs.len() && outputs[next] <= bdf.t + eps {
+                let t = outputs[next];
+                let (z, ints, rate) = bdf.dense(nn, t.min(bdf.t));
+                if !record(&mut run, t, &z, ints, Some(rate))? {
+                    break 'run;
+                }
+                observer.progress(t, t_end);
+                next += 1;
+            }
         }
-        observer.progress(stop, t_end);
     }
     Ok(NetworkRun { run, network: net.clone() })
 }
