@@ -116,7 +116,13 @@ pub fn run(
         scheme: ex.scheme.as_str(),
         integrator: match settings.integrator {
             Integrator::Explicit => "explicit (Dormand–Prince 5(4))",
-            Integrator::Implicit => "implicit (variable-step BDF2)",
+            Integrator::Implicit => {
+                if ex.arrangement.layout().is_some() {
+                    "implicit (variable-step BDF2)"
+                } else {
+                    "implicit (variable-step BDF, orders 1–3)"
+                }
+            }
         },
         cells: run.cells,
         duration_s: end,

@@ -156,6 +156,9 @@ fn every_reference_with_every_scheme_and_integrator_after_settling() {
                     output_interval_s: 10.0,
                     integrator,
                     atol_k: 1e-6,
+                    // Tight in relative terms too (temperatures near 50 °C; the default
+                    // relative tolerance, 1e-5, alone would allow 5e-4 K).
+                    rtol: 1e-8,
                     initial: Initial::Uniform(50.0),
                     wall_heat_capacity_j_mk: 2000.0,
                     ..Default::default()

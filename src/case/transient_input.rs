@@ -141,11 +141,11 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
             ),
         );
     }
-    let tolerance = t.tolerance_K.unwrap_or(1e-4);
+    let tolerance = t.tolerance_K.unwrap_or(TransientSettings::default().atol_k);
     if !(tolerance > 0.0 && tolerance < 10.0) {
         c.fail(
             "transient.tolerance_K",
-            format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-4", tolerance = num(tolerance)),
+            format!("{tolerance} K is not valid: use a small positive temperature tolerance, e.g. 1e-3", tolerance = num(tolerance)),
         );
     }
     let relative = t.relative_tolerance.unwrap_or(TransientSettings::default().rtol);
@@ -192,7 +192,7 @@ pub(super) fn transient(c: &mut Checker, t: &TransientFile, f: &CaseFile, geomet
     let integrator = match t.integrator {
         Some(IntegratorName::Explicit) => Integrator::Explicit,
         // Auto: implicit. Wall–fluid exchange and short cells make most exchanger
-        // transients stiff; the benchmark shows BDF2 ahead even for coarse liquid cases.
+        // transients stiff; the benchmark shows BDF ahead even for coarse liquid cases.
         None | Some(IntegratorName::Auto) | Some(IntegratorName::Implicit) => Integrator::Implicit,
     };
     if let Geometry::PlaneWall { hot, cold, .. } = geometry {

@@ -394,12 +394,21 @@ impl Exchanger {
     /// not depend on how the network is cut into cells); the enthalpy terms carry the
     /// cell's share of the flow.
     pub fn cell_shared(&self, dx_m: f64, flow_share: [f64; 2], t: &CellTemps) -> CellDetail {
+        let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
+        let enthalpies = [hf.enthalpy(t.hot_in), hf.enthalpy(t.hot_out), cf.enthalpy(t.cold_in), cf.enthalpy(t.cold_out)];
+        self.cell_given(dx_m, flow_share, t, enthalpies)
+    }
+
+    /// [`Exchanger::cell_shared`] with the specific enthalpies of the four faces already known
+    /// (hot in, hot out, cold in, cold out, J/kg, at the temperatures in `t`): a caller that
+    /// sweeps a line of cells evaluates each face once instead of once from each side.
+    pub fn cell_given(&self, dx_m: f64, flow_share: [f64; 2], t: &CellTemps, enthalpies: [f64; 4]) -> CellDetail {
         let (hot_bulk_c, beta_hot, hot_props, hot_film, r_hot) = self.side(&self.hot, flow_share[0], t.hot_in, t.hot_out, t.hot_bulk, t.wall, dx_m);
         let (cold_bulk_c, beta_cold, cold_props, cold_film, r_cold) = self.side(&self.cold, flow_share[1], t.cold_in, t.cold_out, t.cold_bulk, t.wall, dx_m);
-        let (hf, cf) = (&*self.hot.fluid, &*self.cold.fluid);
+        let [h_hot_in, h_hot_out, h_cold_in, h_cold_out] = enthalpies;
         let balance = CellBalance {
-            hot_release_w: flow_share[0] * self.hot.mass_flow_kg_s * (hf.enthalpy(t.hot_in) - hf.enthalpy(t.hot_out)),
-            cold_gain_w: flow_share[1] * self.cold.mass_flow_kg_s * (cf.enthalpy(t.cold_out) - cf.enthalpy(t.cold_in)),
+            hot_release_w: flow_share[0] * self.hot.mass_flow_kg_s * (h_hot_in - h_hot_out),
+            cold_gain_w: flow_share[1] * self.cold.mass_flow_kg_s * (h_cold_out - h_cold_in),
             hot_to_wall_w: (hot_bulk_c - t.wall) * dx_m / r_hot,
             wall_to_cold_w: (t.wall - cold_bulk_c) * dx_m / r_cold,
         };

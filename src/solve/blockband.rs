@@ -146,6 +146,19 @@ impl BlockBanded {
         self.solve_factored(rhs)
     }
 
+    /// `out` = A·x (unfactored matrix).
+    pub fn mul_vec(&self, x: &[Vector3<f64>], out: &mut [Vector3<f64>]) {
+        assert!(!self.factored, "multiply before factoring");
+        let (n, r) = (self.n, self.reach);
+        for (i, o) in out.iter_mut().enumerate().take(n) {
+            let mut sum = Vector3::zeros();
+            for (j, xj) in x.iter().enumerate().take((i + r + 1).min(n)).skip(i.saturating_sub(r)) {
+                sum += self.block(i, j as isize - i as isize) * xj;
+            }
+            *o = sum;
+        }
+    }
+
     /// Entry (row `3i + a`, column `3j + b`) of the unfactored matrix (0 outside the band).
     pub fn get(&self, i: usize, a: usize, j: usize, b: usize) -> f64 {
         let off = j as isize - i as isize;
@@ -182,6 +195,14 @@ mod tests {
                 }
             }
             assert_eq!(a.get(0, 1, 1, 2), dense[(1, 5)]);
+            let v: Vec<Vector3<f64>> = (0..n).map(|_| Vector3::new(rnd(), rnd(), rnd())).collect();
+            let mut av = vec![Vector3::zeros(); n];
+            a.mul_vec(&v, &mut av);
+            let flat = nalgebra::DVector::from_iterator(3 * n, v.iter().flat_map(|w| [w[0], w[1], w[2]]));
+            let dense_av = &dense * flat;
+            for i in 0..3 * n {
+                assert!((av[i / 3][i % 3] - dense_av[i]).abs() < 1e-12);
+            }
             a.factor().unwrap();
             let dense_lu = dense.lu();
             for _ in 0..2 {

@@ -18,11 +18,10 @@
 //! expansion of the fluid during the run is not modelled.
 //!
 //! Integrators: `Explicit` is Dormand–Prince 5(4) with adaptive steps (the `ode_solvers`
-//! crate); `Implicit` is variable-step BDF2 (backward Euler for the first step), stiffly
-//! stable, with Newton on the same block-tridiagonal / banded Jacobian as the steady
-//! solver, reused across steps while Newton converges quickly.
+//! crate); `Implicit` is variable-step BDF of order 1 to 3 (see [`bdf`]), stiffly stable,
+//! with modified Newton on the same block-banded Jacobian as the steady solver.
 
-mod bdf2;
+mod bdf;
 mod explicit;
 mod model;
 mod network;
@@ -30,7 +29,7 @@ mod signal;
 
 use crate::model::Exchanger;
 use crate::solve::{solve_steady, SilentObserver, SolveError, SteadySettings};
-use bdf2::*;
+use bdf::*;
 use explicit::*;
 use model::*;
 use nalgebra::{DVector, Vector3};
@@ -51,7 +50,8 @@ pub enum Initial {
 pub enum Integrator {
     /// Dormand–Prince 5(4), adaptive (non-stiff runs).
     Explicit,
-    /// Variable-step BDF2 with Newton (stiff runs, fine grids, gases, long times).
+    /// Variable-step BDF (orders 1–3; BDF2 on networks) with modified Newton (stiff runs,
+    /// fine grids, gases, long times).
     Implicit,
 }
 
@@ -66,9 +66,9 @@ pub struct TransientSettings {
     pub output_interval_s: f64,
     /// Integrator.
     pub integrator: Integrator,
-    /// Absolute tolerance on temperatures, K (default 1e-4).
+    /// Absolute tolerance on temperatures, K (default 1e-3).
     pub atol_k: f64,
-    /// Relative tolerance (default 1e-6).
+    /// Relative tolerance on temperatures in °C (default 1e-5).
     pub rtol: f64,
     /// Step limit for the whole run (default 5·10⁶).
     pub max_steps: usize,
@@ -91,8 +91,8 @@ impl Default for TransientSettings {
             duration_s: 600.0,
             output_interval_s: 1.0,
             integrator: Integrator::Implicit,
-            atol_k: 1e-4,
-            rtol: 1e-6,
+            atol_k: 1e-3,
+            rtol: 1e-5,
             max_steps: 5_000_000,
             initial: Initial::Steady,
             wall_heat_capacity_j_mk: 0.0,
@@ -503,7 +503,7 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
             }
         }
         Integrator::Implicit => {
-            let mut bdf = Bdf2::new(&model, &y, settings);
+            let mut bdf = Bdf::new(&model, &y, settings);
             let eps = 1e-12 * t_end.max(1.0);
             let mut next = outputs.partition_point(|&o| o <= eps);
             'run: for stop in hard_stops(inputs, settings) {

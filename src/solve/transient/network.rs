@@ -168,7 +168,7 @@ impl NetBdf {
     /// points): temperatures, integrals and the fastest wall rate, K/s.
     fn dense(&self, nn: usize, t: f64) -> (Vec<f64>, [f64; 2], f64) {
         let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
-        let (w, dw) = (super::bdf2::lagrange_weights(&times, t), super::bdf2::lagrange_derivative_weights(&times, t));
+        let (w, dw) = (super::bdf::lagrange_weights(&times, t), super::bdf::lagrange_derivative_weights(&times, t));
         let mut z = vec![0.0; self.hist[0].1.len()];
         let mut ints = [0.0; 2];
         for ((p, i), &wj) in self.hist.iter().zip(&self.ints).zip(&w) {
@@ -213,7 +213,7 @@ impl NetBdf {
             None => self.integrals,
             Some((_, ip, _)) => [a1 * self.integrals[0] + a2 * ip[0], a1 * self.integrals[1] + a2 * ip[1]],
         };
-        let predicted = super::bdf2::extrapolate_flat(&self.hist, t1);
+        let predicted = super::bdf::extrapolate_flat(&self.hist, t1);
         let e1 = m.inputs.apply(m.ex, t1);
         let sys = m.system(&e1);
         let nn = m.net.nodes.len();

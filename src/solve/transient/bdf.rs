@@ -1,18 +1,25 @@
-//! The implicit integrator: variable-step BDF2 (backward Euler first) with modified Newton
-//! on the steady solver's Jacobian plus storage.
+//! The implicit integrator: variable-step BDF of order 1 to 3 (backward Euler first, then
+//! BDF2, then BDF3), its coefficients computed on the actual steps, with modified Newton on
+//! the steady solver's Jacobian plus storage.
 //!
-//! Cost per step is kept down three ways:
+//! Cost per step is kept down four ways:
 //! - Steps are never shortened for output times: outputs come from the integrator's own
-//!   interpolant (the quadratic through the last three points, the polynomial BDF2 is built
-//!   on), so a settled run takes long steps however often it is sampled. Only input
-//!   breakpoints (where a schedule has a kink or a jump) end a step.
+//!   interpolant (the polynomial through the last points, the one BDF is built on), so a
+//!   settled run takes long steps however often it is sampled. Only input breakpoints
+//!   (where a schedule has a kink or a jump) end a step.
+//! - Order 3 once four points exist: for the same time-integration error it takes about
+//!   half the steps of BDF2 (benches/README.md). Steps grow at most 1.5× per step at order 3
+//!   (2× below), inside the range where variable-step BDF3 stays zero-stable.
 //! - Modified Newton: the Jacobian and the factorised Newton matrix M = storage − b·h·J are
 //!   kept over iterations and steps. M is refactorised when b·h has moved more than 30 %
 //!   from the value it was built for (the rule of common BDF codes, e.g. CVODE), the
 //!   Jacobian is re-evaluated every 20 steps, and both are refreshed at once when Newton
-//!   converges slowly (rate above 0.9, or more than six iterations).
+//!   converges slowly (rate above 0.9, or more than six iterations). Newton stops on its
+//!   estimated remaining error (the update times rate/(1 − rate), the rate carried from
+//!   the previous iterations with the same matrix).
 //! - Work buffers live in the integrator; the exchanger for the inputs at the new time is
-//!   built once per step, not per right-hand side.
+//!   built once per step, not per right-hand side; each face's enthalpy is evaluated once
+//!   per iteration.
 
 use super::model::*;
 use super::*;
@@ -26,17 +33,25 @@ const REFACTOR_RATIO: f64 = 0.3;
 const JACOBIAN_AGE: usize = 20;
 /// Newton iterations before a step counts as not converging.
 const MAX_NEWTON: usize = 6;
+/// Newton stops when its estimated remaining error is below this fraction of the error
+/// tolerance (measured: 0.001 to 0.05 give the same outlets to 1e-5 K; 0.01 costs 2.0
+/// iterations per step on the cold-start benchmark).
+const NEWTON_FRACTION: f64 = 0.01;
+/// Highest BDF order. Order 3 (A(86°)-stable) took half the steps of order 2 for the same
+/// time error on the cold-start benchmark; order 4 (A(73°)) gained little more, with more
+/// rejections, and its stability wedge is narrower for advection (benches/README.md).
+const MAX_ORDER: usize = 3;
 
 /// One stored point: time, temperatures (the unknowns), full state (enthalpies, wall, the
 /// two integrals).
 type Point = (f64, Vec<Vector3<f64>>, DVector<f64>);
 
-/// Variable-step BDF2 state.
-pub(super) struct Bdf2 {
+/// Variable-step BDF state.
+pub(super) struct Bdf {
     pub(super) t: f64,
     pub(super) h: f64,
-    /// Previous state and step (None before the first step).
-    prev: Option<(DVector<f64>, f64)>,
+    /// Highest BDF order used.
+    max_order: usize,
     /// The last up to three points (predictor and dense output); the last is the current one.
     hist: Vec<Point>,
     /// Temperature rates at t = 0 (K/s): the first step's predictor is explicit Euler, so
@@ -52,6 +67,13 @@ pub(super) struct Bdf2 {
     r: Vec<Vector3<f64>>,
     g: Vec<Vector3<f64>>,
     combined: DVector<f64>,
+    work: Work,
+    unknown_h: Vec<[f64; 2]>,
+    /// (net inflow, hot duty), W, at the last rates evaluated.
+    inflow: (f64, f64),
+    /// Newton's last measured convergence rate with the current matrix (1: unknown).
+    rate: f64,
+    work_b: Vec<Vector3<f64>>,
 }
 
 pub(super) enum StepOutcome {
@@ -59,7 +81,7 @@ pub(super) enum StepOutcome {
     Rejected(f64),
 }
 
-impl Bdf2 {
+impl Bdf {
     pub(super) fn new(model: &Model, y0: &DVector<f64>, settings: &TransientSettings) -> Self {
         let h0 = (settings.output_interval_s * 0.01).max(1e-6);
         let n = model.n;
@@ -79,7 +101,7 @@ impl Bdf2 {
         Self {
             t: 0.0,
             h: h0,
-            prev: None,
+            max_order: MAX_ORDER,
             hist: vec![(0.0, x0, y0.clone())],
             rate0,
             jac: None,
@@ -88,12 +110,12 @@ impl Bdf2 {
             r: vec![Vector3::zeros(); n],
             g: vec![Vector3::zeros(); n],
             combined: DVector::zeros(model.len()),
+            work: Work::default(),
+            unknown_h: vec![[0.0; 2]; n],
+            inflow: (0.0, 0.0),
+            rate: 1.0,
+            work_b: Vec::new(),
         }
-    }
-
-    /// The current state.
-    pub(super) fn y(&self) -> &DVector<f64> {
-        &self.hist.last().expect("a state").2
     }
 
     /// Take one accepted step towards `stop` (not past it).
@@ -172,6 +194,7 @@ impl Bdf2 {
             d[(2, 2)] += model.wall_capacity;
         }
         stats.factorisations += 1;
+        self.rate = 1.0;
         m.factor().map_err(|_| ())?;
         self.newton = Some((m, bh));
         Ok(())
@@ -191,19 +214,18 @@ impl Bdf2 {
     ) -> bool {
         let n = model.n;
         let Some((m, _)) = &self.newton else { return false };
-        let (hf, cf) = (&model.ex.hot.fluid, &model.ex.cold.fluid);
         let hist = &self.combined;
         let mut previous = f64::INFINITY;
         for k in 0..MAX_NEWTON {
             stats.newton_iterations += 1;
             stats.rhs_evaluations += 1;
-            model.rates(e, grid, x, &mut self.r);
+            self.inflow = model.rates_with(e, grid, x, &mut self.r, &mut self.work, &mut self.unknown_h);
             // G = S·storage − b h rates.
             for i in 0..n {
-                let r = self.r[i];
+                let (r, h) = (self.r[i], self.unknown_h[i]);
                 self.g[i] = Vector3::new(
-                    model.mass[0][i] * (hf.enthalpy(x[i][0]) - hist[i]) - bh * r[0],
-                    -(model.mass[1][i] * (cf.enthalpy(x[i][1]) - hist[n + i]) - bh * r[1]),
+                    model.mass[0][i] * (h[0] - hist[i]) - bh * r[0],
+                    -(model.mass[1][i] * (h[1] - hist[n + i]) - bh * r[1]),
                     model.wall_capacity * (x[i][2] - hist[2 * n + i]) - bh * r[2],
                 );
             }
@@ -226,6 +248,12 @@ impl Bdf2 {
                 if rate >= 0.9 {
                     return false;
                 }
+                self.rate = rate;
+            }
+            // The error left after this update, from the convergence rate (this step's, or
+            // the last measured with the same matrix for the first iteration).
+            if self.rate < 1.0 && delta * self.rate / (1.0 - self.rate) < tol {
+                return true;
             }
             previous = delta;
         }
@@ -235,29 +263,31 @@ impl Bdf2 {
     pub(super) fn try_step(&mut self, model: &Model, h: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<StepOutcome, TransientError> {
         let n = model.n;
         let t1 = self.t + h;
-        // BDF coefficients: y1 = a1 y0 + a2 y_prev + b h f(y1).
-        let (a1, a2, b) = match &self.prev {
-            None => (1.0, 0.0, 1.0),
-            Some((_, h_prev)) => {
-                let w = h / h_prev;
-                ((1.0 + w).powi(2) / (1.0 + 2.0 * w), -(w * w) / (1.0 + 2.0 * w), (1.0 + w) / (1.0 + 2.0 * w))
-            }
-        };
-        self.combined.copy_from(&self.hist.last().expect("a state").2);
-        self.combined *= a1;
-        if let Some((yp, _)) = &self.prev {
-            self.combined.axpy(a2, yp, 1.0);
+        // BDF-k coefficients on the actual (variable) steps: the polynomial through the new
+        // point and the last k points has derivative f(y1) at t1, Σ_j α_j y_j = f(y1), so
+        // y1 = Σ_{j≥1} (−α_j/α_0) y_j + (1/α_0) f(y1). k = 1 is backward Euler, the first step.
+        let order = self.max_order.min(self.hist.len());
+        let mut ts = vec![t1];
+        ts.extend(self.hist.iter().rev().take(order).map(|p| p.0));
+        let alpha = lagrange_derivative_weights(&ts, t1);
+        let bh = 1.0 / alpha[0];
+        self.combined.fill(0.0);
+        for (p, a) in self.hist.iter().rev().take(order).zip(&alpha[1..]) {
+            self.combined.axpy(-a / alpha[0], &p.2, 1.0);
         }
-        // Predictor: polynomial extrapolation of the temperatures through the history.
-        let predicted =
-            if self.hist.len() == 1 { self.hist[0].1.iter().zip(&self.rate0).map(|(x, r)| x + r * h).collect() } else { extrapolate(&self.hist, t1) };
+        // Predictor: the polynomial through the last k + 1 points (explicit Euler first).
+        let predictor_points = (order + 1).min(self.hist.len());
+        let predicted = if self.hist.len() == 1 {
+            self.hist[0].1.iter().zip(&self.rate0).map(|(x, r)| x + r * h).collect()
+        } else {
+            extrapolate(&self.hist[self.hist.len() - predictor_points..], t1)
+        };
         let e1 = model.inputs.apply(model.ex, t1);
         let grid = model.grid(&e1);
-        let bh = b * h;
         // Newton stops well inside the error tolerance, and above the round-off of the
         // enthalpy differences (about 1e-13 of the temperatures).
         let t_scale = predicted.iter().map(|v| v.abs().max()).fold(1.0, f64::max);
-        let tol = (1e-3 * (settings.atol_k + settings.rtol * t_scale)).max(1e-12 * t_scale);
+        let tol = (NEWTON_FRACTION * (settings.atol_k + settings.rtol * t_scale)).max(1e-12 * t_scale);
         let mut x = predicted.clone();
         let mut converged = false;
         for attempt in 0..2 {
@@ -284,9 +314,16 @@ impl Bdf2 {
             self.newton = None;
             return Ok(StepOutcome::Rejected(h * 0.5));
         }
-        // Error estimate from the predictor–corrector difference (Milne's device; the
-        // constant 2/11 is that of constant-step BDF2 with a quadratic predictor).
-        let constant = if self.hist.len() >= 3 { 2.0 / 11.0 } else { 0.5 };
+        // Error estimate from the predictor–corrector difference (Milne's device).
+        // LTE ≈ c/(1 + c)·(x − predicted), c = β/(k + 1) the error constant of BDF-k with
+        // β = b·h/h (2/11 for constant-step BDF2, 3/25 for BDF3); with a predictor of lower
+        // order than the method (the first steps), ½ of the difference (an overestimate).
+        let constant = if predictor_points == order + 1 && self.hist.len() > 1 {
+            let c = bh / h / (order as f64 + 1.0);
+            c / (1.0 + c)
+        } else {
+            0.5
+        };
         let (mut err, mut local_k) = (0.0f64, 0.0f64);
         for i in 0..n {
             for c in 0..3 {
@@ -296,28 +333,42 @@ impl Bdf2 {
             }
         }
         if err > 1.0 {
-            return Ok(StepOutcome::Rejected(h * (0.9 * err.powf(-1.0 / 3.0)).clamp(0.1, 0.5)));
+            return Ok(StepOutcome::Rejected(h * (0.9 * err.powf(-1.0 / (order as f64 + 1.0))).clamp(0.1, 0.5)));
         }
         stats.largest_local_error_k = stats.largest_local_error_k.max(local_k);
         stats.accumulated_local_error_k += local_k;
-        // Accept: update the enthalpy states and the two integrals with the same formula.
-        let (net, hot) = model.inflows(&e1, &grid, &x);
-        let mut y1 = DVector::zeros(model.len());
+        // Accept. Every state, the two integrals included, is advanced by the BDF formula
+        // y1 = combined + b·h·f from the rates of the last Newton iterate x_k, carried to the
+        // accepted x_k+1 = x_k − Δ to first order with the Jacobian (f(x_k+1) ≈ f(x_k) − S·J·Δ).
+        // The cells' rates sum to the net inflow at every state, so the columns of J sum to
+        // its derivative, and the stored energy changes by exactly b·h times the inflow used
+        // for the integral: energy closure is exact to round-off whatever Newton's remaining
+        // error, and y1 agrees with h(x_k+1) to second order in Δ.
+        let mut correction = std::mem::take(&mut self.work_b);
+        correction.resize(n, Vector3::zeros());
+        self.jac.as_ref().expect("a Jacobian after Newton").0.mul_vec(&self.g, &mut correction);
+        let (mut net, hot) = self.inflow;
+        let mut y1 = self.combined.clone();
         for i in 0..n {
-            y1[i] = model.ex.hot.fluid.enthalpy(x[i][0]);
-            y1[n + i] = model.ex.cold.fluid.enthalpy(x[i][1]);
-            y1[2 * n + i] = x[i][2];
+            let (r, c) = (self.r[i], correction[i]);
+            let rate = Vector3::new(r[0] - c[0], r[1] + c[1], r[2] - c[2]);
+            net += -c[0] + c[1] - c[2];
+            y1[i] += bh * rate[0] / model.mass[0][i];
+            y1[n + i] += bh * rate[1] / model.mass[1][i];
+            y1[2 * n + i] += bh * rate[2] / model.wall_capacity;
         }
-        y1[3 * n] = self.combined[3 * n] + bh * net;
-        y1[3 * n + 1] = self.combined[3 * n + 1] + bh * hot;
-        self.prev = Some((self.y().clone(), h));
+        self.work_b = correction;
+        // (The hot duty integral, not part of the closure, is taken at x_k: off by O(Δ).)
+        y1[3 * n] += bh * net;
+        y1[3 * n + 1] += bh * hot;
         self.t = t1;
         self.hist.push((t1, x, y1));
-        if self.hist.len() > 3 {
+        if self.hist.len() > self.max_order + 1 {
             self.hist.remove(0);
         }
         self.jac_age += 1;
-        let grow = if err > 0.0 { (0.9 * err.powf(-1.0 / 3.0)).clamp(0.2, 2.0) } else { 2.0 };
+        let most = if order >= 3 { 1.5 } else { 2.0 };
+        let grow = if err > 0.0 { (0.9 * err.powf(-1.0 / (order as f64 + 1.0))).clamp(0.2, most) } else { most };
         Ok(StepOutcome::Accepted(h * grow))
     }
 }
