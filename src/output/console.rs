@@ -37,11 +37,19 @@ pub fn transient(r: &TransientReport) -> String {
     }
     let _ = writeln!(out, "\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
     let _ = writeln!(out, "energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
+    let st = &r.stats;
     let _ = writeln!(
         out,
-        "steps {} (rejected {}), Jacobians {}, right-hand sides {}",
-        r.stats.steps, r.stats.rejected_steps, r.stats.jacobian_evaluations, r.stats.rhs_evaluations
+        "steps {} (rejected {}), Newton iterations {}, Jacobians {}, factorisations {}, right-hand sides {}",
+        st.steps, st.rejected_steps, st.newton_iterations, st.jacobian_evaluations, st.factorisations, st.rhs_evaluations
     );
+    if st.newton_iterations > 0 {
+        let _ = writeln!(
+            out,
+            "time integration: largest local error estimate {:.1e} K; their sum {:.1e} K (a pessimistic bound on the accumulated error; the grid error is usually far larger)",
+            st.largest_local_error_k, st.accumulated_local_error_k
+        );
+    }
     let _ = writeln!(out, "\nCaution: {}", r.caution);
     out.trim_end().to_string()
 }

@@ -83,13 +83,12 @@ pub(super) enum StepOutcome {
 
 impl Bdf {
     pub(super) fn new(model: &Model, y0: &DVector<f64>, settings: &TransientSettings) -> Self {
-        let h0 = (settings.output_interval_s * 0.01).max(1e-6);
         let n = model.n;
         let x0 = model.temperatures(y0);
         let e0 = model.inputs.apply(model.ex, 0.0);
         let mut r = vec![Vector3::zeros(); n];
         model.rates(&e0, &model.grid(&e0), &x0, &mut r);
-        let rate0 = (0..n)
+        let rate0: Vec<Vector3<f64>> = (0..n)
             .map(|i| {
                 Vector3::new(
                     r[i][0] / (model.mass[0][i] * model.ex.hot.fluid.props(x0[i][0]).cp),
@@ -98,6 +97,16 @@ impl Bdf {
                 )
             })
             .collect();
+        // First step: the explicit-Euler change of the fastest unknown about one tolerance
+        // (backward Euler's local error is then a fraction of it); a hundredth of the run
+        // where nothing moves at t = 0. Independent of the output interval.
+        let fastest = rate0
+            .iter()
+            .zip(&x0)
+            .map(|(r, x): (&Vector3<f64>, &Vector3<f64>)| (0..3).map(|c| r[c].abs() / (settings.atol_k + settings.rtol * x[c].abs())).fold(0.0, f64::max))
+            .fold(0.0, f64::max);
+        let most = 0.01 * settings.duration_s.max(1e-9);
+        let h0 = if fastest > 0.0 { (1.0 / fastest).min(most) } else { most };
         Self {
             t: 0.0,
             h: h0,

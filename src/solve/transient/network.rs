@@ -246,6 +246,7 @@ impl NetBdf {
                 let st = Storage { bh, node: &node_diag, wall: &m.wall_cap };
                 sys.jacobian_values(&z, &mut values, &mut blocks, Some(&st));
                 stats.jacobian_evaluations += 1;
+                stats.factorisations += 1;
                 if lin.factor(&values).is_err() {
                     break;
                 }
@@ -269,15 +270,18 @@ impl NetBdf {
         if !converged {
             return Ok(Err(h * 0.5));
         }
-        let order_known = self.hist.len() >= 3;
-        let err = z
-            .iter()
-            .zip(&predicted)
-            .map(|(x, p)| (x - p).abs() * if order_known { 2.0 / 11.0 } else { 0.5 } / (settings.atol_k + settings.rtol * x.abs()))
-            .fold(0.0, f64::max);
+        let constant = if self.hist.len() >= 3 { 2.0 / 11.0 } else { 0.5 };
+        let (mut err, mut local_k) = (0.0f64, 0.0f64);
+        for (x, p) in z.iter().zip(&predicted) {
+            let e = (x - p).abs() * constant;
+            local_k = local_k.max(e);
+            err = err.max(e / (settings.atol_k + settings.rtol * x.abs()));
+        }
         if err > 1.0 {
             return Ok(Err(h * (0.9 * err.powf(-1.0 / 3.0)).clamp(0.1, 0.5)));
         }
+        stats.largest_local_error_k = stats.largest_local_error_k.max(local_k);
+        stats.accumulated_local_error_k += local_k;
         let (net, hot) = m.inflows(&e1, &z);
         let new_int = [hist_int[0] + bh * net, hist_int[1] + bh * hot];
         m.stored(&z, &mut stored);
