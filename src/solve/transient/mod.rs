@@ -18,7 +18,7 @@
 //! expansion of the fluid during the run is not modelled.
 //!
 //! Integrators: `Explicit` is Dormand–Prince 5(4) with adaptive steps (the `ode_solvers`
-//! crate); `Implicit` is variable-step BDF of order 1 to 3 (see [`bdf`]), stiffly stable,
+//! crate); `Implicit` is variable-step BDF of order 1 to 3 (see `bdf.rs`), stiffly stable,
 //! with modified Newton on the same block-banded Jacobian as the steady solver.
 
 mod bdf;
