@@ -50,9 +50,8 @@ type Point = (f64, Vec<Vector3<f64>>, DVector<f64>);
 pub(super) struct Bdf {
     pub(super) t: f64,
     pub(super) h: f64,
-    /// Highest BDF order used.
-    max_order: usize,
-    /// The last up to three points (predictor and dense output); the last is the current one.
+    /// The last up to MAX_ORDER + 1 points (coefficients, predictor and dense output); the
+    /// last is the current one.
     hist: Vec<Point>,
     /// Temperature rates at t = 0 (K/s): the first step's predictor is explicit Euler, so
     /// its difference from backward Euler estimates the local error (h²y''/2), not the
@@ -73,12 +72,8 @@ pub(super) struct Bdf {
     inflow: (f64, f64),
     /// Newton's last measured convergence rate with the current matrix (1: unknown).
     rate: f64,
-    work_b: Vec<Vector3<f64>>,
-}
-
-pub(super) enum StepOutcome {
-    Accepted(f64),
-    Rejected(f64),
+    /// J·Δ of the accepted step's last Newton update.
+    correction: Vec<Vector3<f64>>,
 }
 
 impl Bdf {
@@ -87,7 +82,7 @@ impl Bdf {
         let x0 = model.temperatures(y0);
         let e0 = model.inputs.apply(model.ex, 0.0);
         let mut r = vec![Vector3::zeros(); n];
-        model.rates(&e0, &model.grid(&e0), &x0, &mut r);
+        model.rates(&e0, &model.grid(&e0), &x0, &mut r, &mut Work::default(), &mut vec![[0.0; 2]; n]);
         let rate0: Vec<Vector3<f64>> = (0..n)
             .map(|i| {
                 Vector3::new(
@@ -110,7 +105,6 @@ impl Bdf {
         Self {
             t: 0.0,
             h: h0,
-            max_order: MAX_ORDER,
             hist: vec![(0.0, x0, y0.clone())],
             rate0,
             jac: None,
@@ -123,26 +117,21 @@ impl Bdf {
             unknown_h: vec![[0.0; 2]; n],
             inflow: (0.0, 0.0),
             rate: 1.0,
-            work_b: Vec::new(),
+            correction: vec![Vector3::zeros(); n],
         }
     }
 
     /// Take one accepted step towards `stop` (not past it).
     pub(super) fn step(&mut self, model: &Model, stop: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<(), TransientError> {
         let (mut t, mut h) = (self.t, self.h);
-        step_once(&mut t, &mut h, stop, settings, stats, |step, stats| {
-            Ok(match self.try_step(model, step, settings, stats)? {
-                StepOutcome::Accepted(next) => Ok(next),
-                StepOutcome::Rejected(next) => Err(next),
-            })
-        })?;
+        step_once(&mut t, &mut h, stop, settings, stats, |step, stats| self.try_step(model, step, settings, stats))?;
         self.t = t;
         self.h = h;
         Ok(())
     }
 
     /// Dense output at `t` within the last step: the state, its temperatures and the fastest
-    /// wall rate (K/s, signed), from the quadratic through the last three points.
+    /// wall rate (K/s, signed), from the polynomial through the stored points.
     pub(super) fn dense(&self, model: &Model, t: f64) -> (DVector<f64>, Vec<Vector3<f64>>, f64) {
         let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
         let (w, dw) = (lagrange_weights(&times, t), lagrange_derivative_weights(&times, t));
@@ -228,7 +217,7 @@ impl Bdf {
         for k in 0..MAX_NEWTON {
             stats.newton_iterations += 1;
             stats.rhs_evaluations += 1;
-            self.inflow = model.rates_with(e, grid, x, &mut self.r, &mut self.work, &mut self.unknown_h);
+            self.inflow = model.rates(e, grid, x, &mut self.r, &mut self.work, &mut self.unknown_h);
             // G = S·storage − b h rates.
             for i in 0..n {
                 let (r, h) = (self.r[i], self.unknown_h[i]);
@@ -269,13 +258,14 @@ impl Bdf {
         false
     }
 
-    pub(super) fn try_step(&mut self, model: &Model, h: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<StepOutcome, TransientError> {
+    /// One step of length `h`: Ok(next step) if accepted, Err(next step) if rejected.
+    fn try_step(&mut self, model: &Model, h: f64, settings: &TransientSettings, stats: &mut Stats) -> Result<Result<f64, f64>, TransientError> {
         let n = model.n;
         let t1 = self.t + h;
         // BDF-k coefficients on the actual (variable) steps: the polynomial through the new
         // point and the last k points has derivative f(y1) at t1, Σ_j α_j y_j = f(y1), so
         // y1 = Σ_{j≥1} (−α_j/α_0) y_j + (1/α_0) f(y1). k = 1 is backward Euler, the first step.
-        let order = self.max_order.min(self.hist.len());
+        let order = MAX_ORDER.min(self.hist.len());
         let mut ts = vec![t1];
         ts.extend(self.hist.iter().rev().take(order).map(|p| p.0));
         let alpha = lagrange_derivative_weights(&ts, t1);
@@ -311,7 +301,7 @@ impl Bdf {
             if self.prepare(model, &e1, &grid, &x, bh, stats).is_err() {
                 self.jac = None;
                 self.newton = None;
-                return Ok(StepOutcome::Rejected(h * 0.5));
+                return Ok(Err(h * 0.5));
             }
             if self.iterate(model, &e1, &grid, &mut x, bh, tol, stats) {
                 converged = true;
@@ -321,7 +311,7 @@ impl Bdf {
         if !converged {
             self.jac = None;
             self.newton = None;
-            return Ok(StepOutcome::Rejected(h * 0.5));
+            return Ok(Err(h * 0.5));
         }
         // Error estimate from the predictor–corrector difference (Milne's device).
         // LTE ≈ c/(1 + c)·(x − predicted), c = β/(k + 1) the error constant of BDF-k with
@@ -342,7 +332,7 @@ impl Bdf {
             }
         }
         if err > 1.0 {
-            return Ok(StepOutcome::Rejected(h * (0.9 * err.powf(-1.0 / (order as f64 + 1.0))).clamp(0.1, 0.5)));
+            return Ok(Err(h * (0.9 * err.powf(-1.0 / (order as f64 + 1.0))).clamp(0.1, 0.5)));
         }
         stats.largest_local_error_k = stats.largest_local_error_k.max(local_k);
         stats.accumulated_local_error_k += local_k;
@@ -353,32 +343,29 @@ impl Bdf {
         // its derivative, and the stored energy changes by exactly b·h times the inflow used
         // for the integral: energy closure is exact to round-off whatever Newton's remaining
         // error, and y1 agrees with h(x_k+1) to second order in Δ.
-        let mut correction = std::mem::take(&mut self.work_b);
-        correction.resize(n, Vector3::zeros());
-        self.jac.as_ref().expect("a Jacobian after Newton").0.mul_vec(&self.g, &mut correction);
+        self.jac.as_ref().expect("a Jacobian after Newton").0.mul_vec(&self.g, &mut self.correction);
         let (mut net, hot) = self.inflow;
         let mut y1 = self.combined.clone();
         for i in 0..n {
-            let (r, c) = (self.r[i], correction[i]);
+            let (r, c) = (self.r[i], self.correction[i]);
             let rate = Vector3::new(r[0] - c[0], r[1] + c[1], r[2] - c[2]);
             net += -c[0] + c[1] - c[2];
             y1[i] += bh * rate[0] / model.mass[0][i];
             y1[n + i] += bh * rate[1] / model.mass[1][i];
             y1[2 * n + i] += bh * rate[2] / model.wall_capacity;
         }
-        self.work_b = correction;
         // (The hot duty integral, not part of the closure, is taken at x_k: off by O(Δ).)
         y1[3 * n] += bh * net;
         y1[3 * n + 1] += bh * hot;
         self.t = t1;
         self.hist.push((t1, x, y1));
-        if self.hist.len() > self.max_order + 1 {
+        if self.hist.len() > MAX_ORDER + 1 {
             self.hist.remove(0);
         }
         self.jac_age += 1;
         let most = if order >= 3 { 1.5 } else { 2.0 };
         let grow = if err > 0.0 { (0.9 * err.powf(-1.0 / (order as f64 + 1.0))).clamp(0.2, most) } else { most };
-        Ok(StepOutcome::Accepted(h * grow))
+        Ok(Ok(h * grow))
     }
 }
 

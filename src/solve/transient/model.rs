@@ -19,13 +19,11 @@ pub(super) struct Model<'a> {
     pub(super) wall_capacity: f64,
 }
 
-/// Work space of [`Model::rates_with`].
+/// Work space of [`Model::rates`].
 #[derive(Debug, Default)]
 pub(super) struct Work {
     temps: Vec<crate::model::CellTemps>,
     out: Vec<[f64; 2]>,
-    /// Inlet enthalpies (hot, cold), J/kg.
-    inlet: [f64; 2],
 }
 
 /// State layout: h_hot[0..n], h_cold[0..n], T_wall[0..n], net inflow, hot heat.
@@ -45,41 +43,29 @@ impl Model<'_> {
     }
 
     /// Storage-form right-hand side for the inputs `e` on grid `g` (both for the time of the
-    /// call; built once per step, not per call): per cell [hot, −cold, wall] residuals (W).
-    pub(super) fn rates(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>], r: &mut [Vector3<f64>]) {
-        for (i, ri) in r.iter_mut().enumerate() {
-            let res = e.cell(self.dx, &g.cell_temps(x, i)).balance.steady_residual();
-            *ri = Vector3::new(res[0], -res[1], res[2]);
-        }
-    }
-
-    /// [`Model::rates`] evaluating each face's enthalpy once (a face is the outflow of one
-    /// cell and the inflow of the next), and giving the enthalpies at the unknowns (for the
-    /// storage terms; on the trapezoidal grid an unknown is its cell's outflow face, so these
-    /// come free). `work` holds the per-cell temperatures and outflow enthalpies.
-    /// Returns (net enthalpy inflow of both streams, hot duty), W, from the same face
-    /// enthalpies, so the cells' rates sum to the net inflow to round-off.
-    pub(super) fn rates_with(
-        &self,
-        e: &Exchanger,
-        g: &Grid,
-        x: &[Vector3<f64>],
-        r: &mut [Vector3<f64>],
-        work: &mut Work,
-        unknown_h: &mut [[f64; 2]],
-    ) -> (f64, f64) {
+    /// call; built once per step, not per call): per cell [hot, −cold, wall] residuals (W) in
+    /// `r`, and the specific enthalpies at the unknowns in `unknown_h` (for the storage terms).
+    /// Each face's enthalpy is evaluated once (a face is the outflow of one cell and the
+    /// inflow of the next; on the trapezoidal grid an unknown is its cell's outflow face, so
+    /// the storage enthalpies come free). `work` holds the per-cell temperatures and outflow
+    /// enthalpies. Returns (net enthalpy inflow of both streams, hot duty), W, from the same
+    /// face enthalpies, so the cells' rates sum to the net inflow to round-off.
+    pub(super) fn rates(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>], r: &mut [Vector3<f64>], work: &mut Work, unknown_h: &mut [[f64; 2]]) -> (f64, f64) {
         let n = self.n;
         let (hf, cf) = (&*e.hot.fluid, &*e.cold.fluid);
         work.temps.clear();
         work.temps.extend((0..n).map(|i| g.cell_temps(x, i)));
         work.out.clear();
         work.out.extend(work.temps.iter().map(|t| [hf.enthalpy(t.hot_out), cf.enthalpy(t.cold_out)]));
+        // The inlet cells' inflow faces are the inlet temperatures themselves.
+        let inlet = [hf.enthalpy(e.hot.inlet_c), cf.enthalpy(e.cold.inlet_c)];
         let cold_forward = e.arrangement != crate::model::Arrangement::Counterflow;
         for i in 0..n {
             let t = &work.temps[i];
             // The upstream cell's outflow is this cell's inflow (same value: reuse its enthalpy).
             let from = |j: Option<usize>, s: usize, t_in: f64, f: &dyn crate::fluid::Fluid| match j {
                 Some(j) if [work.temps[j].hot_out, work.temps[j].cold_out][s] == t_in => work.out[j][s],
+                None if [e.hot.inlet_c, e.cold.inlet_c][s] == t_in => inlet[s],
                 _ => f.enthalpy(t_in),
             };
             let h_hot_in = from(i.checked_sub(1), 0, t.hot_in, hf);
@@ -91,27 +77,11 @@ impl Model<'_> {
                 if x[i][0] == t.hot_out { work.out[i][0] } else { hf.enthalpy(x[i][0]) },
                 if x[i][1] == t.cold_out { work.out[i][1] } else { cf.enthalpy(x[i][1]) },
             ];
-            if i == 0 {
-                work.inlet = [h_hot_in, if cold_forward { h_cold_in } else { f64::NAN }];
-            }
-            if i + 1 == n && !cold_forward {
-                work.inlet[1] = h_cold_in;
-            }
         }
         let hot_out = work.out[n - 1][0];
         let cold_out = if cold_forward { work.out[n - 1][1] } else { work.out[0][1] };
-        let hot = e.hot.mass_flow_kg_s * (work.inlet[0] - hot_out);
-        let cold = e.cold.mass_flow_kg_s * (work.inlet[1] - cold_out);
-        (hot + cold, hot)
-    }
-
-    /// (net enthalpy inflow of both streams, hot duty), W.
-    pub(super) fn inflows(&self, e: &Exchanger, g: &Grid, x: &[Vector3<f64>]) -> (f64, f64) {
-        let (hot_faces, cold_faces) = g.faces(x);
-        let (hot_out, cold_out) = Grid::outlets(e.arrangement, &hot_faces, &cold_faces);
-        let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
-        let hot = e.hot.mass_flow_kg_s * (hf.enthalpy(e.hot.inlet_c) - hf.enthalpy(hot_out));
-        let cold = e.cold.mass_flow_kg_s * (cf.enthalpy(e.cold.inlet_c) - cf.enthalpy(cold_out));
+        let hot = e.hot.mass_flow_kg_s * (inlet[0] - hot_out);
+        let cold = e.cold.mass_flow_kg_s * (inlet[1] - cold_out);
         (hot + cold, hot)
     }
 
@@ -120,9 +90,7 @@ impl Model<'_> {
         let x = self.temperatures(y);
         let mut r = vec![Vector3::zeros(); n];
         let e = self.inputs.apply(self.ex, t);
-        let g = self.grid(&e);
-        self.rates(&e, &g, &x, &mut r);
-        let (net, hot) = self.inflows(&e, &g, &x);
+        let (net, hot) = self.rates(&e, &self.grid(&e), &x, &mut r, &mut Work::default(), &mut vec![[0.0; 2]; n]);
         for i in 0..n {
             dy[i] = r[i][0] / self.mass[0][i];
             dy[n + i] = r[i][1] / self.mass[1][i];

@@ -143,7 +143,6 @@ struct NetBdf {
     /// Stored energies now and at the previous point (with its step).
     stored: Vec<f64>,
     prev: Option<(Vec<f64>, [f64; 2], f64)>,
-    integrals: [f64; 2],
     /// Temperatures at up to three points (for the predictor and dense output).
     hist: Vec<(f64, Vec<f64>)>,
     /// The two integrals at the same points.
@@ -153,6 +152,11 @@ struct NetBdf {
 impl NetBdf {
     fn z(&self) -> &[f64] {
         &self.hist.last().expect("a state").1
+    }
+
+    /// The two integrals at the current point.
+    fn integrals(&self) -> [f64; 2] {
+        *self.ints.last().expect("a state")
     }
 
     /// One accepted step towards `stop` (not past it).
@@ -210,8 +214,11 @@ impl NetBdf {
             Some((sp, _, _)) => self.stored.iter().zip(sp).map(|(s, p)| a1 * s + a2 * p).collect(),
         };
         let hist_int = match &self.prev {
-            None => self.integrals,
-            Some((_, ip, _)) => [a1 * self.integrals[0] + a2 * ip[0], a1 * self.integrals[1] + a2 * ip[1]],
+            None => self.integrals(),
+            Some((_, ip, _)) => {
+                let now = self.integrals();
+                [a1 * now[0] + a2 * ip[0], a1 * now[1] + a2 * ip[1]]
+            }
         };
         let predicted = super::bdf::extrapolate_flat(&self.hist, t1);
         let e1 = m.inputs.apply(m.ex, t1);
@@ -285,8 +292,7 @@ impl NetBdf {
         let (net, hot) = m.inflows(&e1, &z);
         let new_int = [hist_int[0] + bh * net, hist_int[1] + bh * hot];
         m.stored(&z, &mut stored);
-        self.prev = Some((std::mem::replace(&mut self.stored, stored), self.integrals, h));
-        self.integrals = new_int;
+        self.prev = Some((std::mem::replace(&mut self.stored, stored), self.integrals(), h));
         self.t = t1;
         self.hist.push((t1, z));
         self.ints.push(new_int);
@@ -371,15 +377,8 @@ pub fn simulate_network(
 
     let mut stored0 = Vec::new();
     model.stored(&z0, &mut stored0);
-    let mut bdf = NetBdf {
-        t: 0.0,
-        h: (settings.output_interval_s * 0.01).max(1e-6),
-        stored: stored0,
-        prev: None,
-        integrals: [0.0, 0.0],
-        hist: vec![(0.0, z0)],
-        ints: vec![[0.0, 0.0]],
-    };
+    let mut bdf =
+        NetBdf { t: 0.0, h: (settings.output_interval_s * 0.01).max(1e-6), stored: stored0, prev: None, hist: vec![(0.0, z0)], ints: vec![[0.0, 0.0]] };
     let mut run = TransientRun {
         samples: Vec::new(),
         snapshots: Vec::new(),
