@@ -277,6 +277,8 @@ fn flow_stops_and_restarts() {
 /// Outputs do not shape the steps: sampling the same cold start every 0.1 s or every 20 s
 /// takes the same steps (outputs come from the integrator's interpolant), and the shared
 /// output times agree to well within the tolerance (the interpolant is of the method's order).
+/// A property of dense output in multistep codes (common practice: Hairer & Wanner, Solving
+/// ODEs II, §III.5 on interpolation of multistep methods, from memory [M]).
 #[test]
 fn output_interval_does_not_change_the_steps() {
     let (ex, c_wall) = demo();
@@ -305,7 +307,7 @@ fn output_interval_does_not_change_the_steps() {
 /// Both tolerances act: tightening them together keeps shrinking the time-integration
 /// error of the outlets well below 1e-3 K (a fixed relative tolerance of 1e-6 once held it
 /// near 2e-3 K), measured against the same grid integrated far more tightly (self-
-/// convergence, the standard check of an integrator); and the reported accumulated local
+/// convergence, the standard check of an integrator, common practice); and the reported accumulated local
 /// error bounds the measured error.
 #[test]
 fn tightening_both_tolerances_keeps_improving_the_outlets() {

@@ -175,7 +175,8 @@ mod tests {
     use super::*;
 
     /// Against nalgebra's dense LU on random block-diagonally dominant systems, reach 1
-    /// and 2, solved twice with one factorisation.
+    /// and 2, solved twice with one factorisation (the reference library: nalgebra's LU with
+    /// partial pivoting).
     #[test]
     fn matches_dense_solve() {
         for reach in [1usize, 2] {

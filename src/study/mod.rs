@@ -527,6 +527,7 @@ mod tests {
     /// The half grid started from the merged fine solution converges to the same answer as
     /// from the usual guess (to the solver tolerance), in no more Newton iterations, for each
     /// scheme and both arrangements (the merge must pick the right face of each pair).
+    /// Self-consistency: Newton's answer does not depend on its start (common practice).
     #[test]
     fn warm_started_half_grid_matches_a_cold_start() {
         let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("cases/water-cooler.toml");

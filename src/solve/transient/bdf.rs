@@ -407,7 +407,8 @@ pub(super) fn lagrange_derivative_weights(ts: &[f64], t: f64) -> Vec<f64> {
 mod tests {
     use super::*;
 
-    /// The interpolant reproduces a quadratic and its derivative exactly.
+    /// The interpolant reproduces a quadratic and its derivative exactly [A] (Lagrange
+    /// interpolation through three points is exact for polynomials of degree two).
     #[test]
     fn lagrange_weights_reproduce_a_quadratic() {
         let f = |t: f64| 3.0 - 2.0 * t + 0.5 * t * t;
