@@ -277,8 +277,8 @@ fn flow_stops_and_restarts() {
 /// Outputs do not shape the steps: sampling the same cold start every 0.1 s or every 20 s
 /// takes the same steps (outputs come from the integrator's interpolant), and the shared
 /// output times agree to well within the tolerance (the interpolant is of the method's order).
-/// A property of dense output in multistep codes (common practice: Hairer & Wanner, Solving
-/// ODEs II, §III.5 on interpolation of multistep methods, from memory [M]).
+/// Common practice in multistep codes, which interpolate between steps for output rather
+/// than stop on output times (DASSL and CVODE do; from memory [M]).
 #[test]
 fn output_interval_does_not_change_the_steps() {
     let (ex, c_wall) = demo();
