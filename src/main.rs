@@ -245,7 +245,7 @@ fn run(path: &Path, out: Option<PathBuf>, grid_study: Option<usize>, write: Writ
     let exchanger = case.build();
     let options = RatingOptions { study_levels: grid_study };
     let report = match study::rate(&case.name, &exchanger, &case.solver, &options, &mut Progress { quiet }) {
-        Ok(r) => r,
+        Ok(r) => r.with_input(study::echo::steady(&case.source, &exchanger, case.solver.cells)),
         Err(e) => return solver_failed(&e, case::advice::steady(&e)),
     };
     // A rated case with a [size] table also gets its design margin against that target.
@@ -354,7 +354,8 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         b.finish_and_clear();
     }
     let report = match result {
-        Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r },
+        Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r }
+            .with_input(study::echo::transient(&case.source, &exchanger, &settings, &inputs)),
         Err(e) => return solver_failed(&e, case::advice::transient(&e)),
     };
     let code = finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report));
@@ -452,7 +453,7 @@ fn size(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
     };
     let exchanger = sized.build();
     let report = match study::rate(&sized.name, &exchanger, &sized.solver, &RatingOptions::default(), &mut Progress { quiet: true }) {
-        Ok(r) => SteadyReport { sizing: Some(sizing), ..r },
+        Ok(r) => SteadyReport { sizing: Some(sizing), ..r }.with_input(study::echo::steady(&case.source, &exchanger, sized.solver.cells)),
         Err(e) => return solver_failed(&e, case::advice::steady(&e)),
     };
     let written = hxgrid::output::write_steady(&report, &dir, WriteOptions::default());

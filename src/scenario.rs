@@ -114,6 +114,9 @@ pub fn run(
         stop: run.stopped.clone(),
         storage: None,
         scheme: ex.scheme.as_str(),
+        version: crate::results::VERSION,
+        input_sha256: None,
+        input: None,
         integrator: match settings.integrator {
             Integrator::Explicit => "explicit (Dormand–Prince 5(4))",
             Integrator::Implicit => {

@@ -77,6 +77,13 @@ pub struct ProfileRow {
     /// Wall mid-thickness temperature, °C.
     #[serde(rename = "wall_C")]
     pub wall_c: f64,
+    /// Wetted surface temperature on the hot face (where the hot fluid touches the wall or
+    /// its fouling layer; at the fin root of a finned face), °C: T_hot − q'/(h η_o A_hot).
+    #[serde(rename = "hot_surface_C")]
+    pub hot_surface_c: f64,
+    /// Wetted surface temperature on the cold face, °C: T_cold + q'/(h η_o A_cold).
+    #[serde(rename = "cold_surface_C")]
+    pub cold_surface_c: f64,
     /// Heat rate per metre of length (hot → wall), W/m.
     #[serde(rename = "heat_rate_per_length_W_m")]
     pub heat_rate_per_length_w_m: f64,
@@ -98,6 +105,12 @@ pub struct ProfileRow {
     /// Cold Reynolds number.
     #[serde(rename = "Re_cold")]
     pub re_cold: Option<f64>,
+    /// Hot mean velocity in the free-flow area, m/s (None without flow geometry).
+    #[serde(rename = "velocity_hot_m_s")]
+    pub velocity_hot_m_s: Option<f64>,
+    /// Cold mean velocity, m/s.
+    #[serde(rename = "velocity_cold_m_s")]
+    pub velocity_cold_m_s: Option<f64>,
     /// Hot Prandtl number.
     #[serde(rename = "Pr_hot")]
     pub pr_hot: f64,
@@ -132,6 +145,90 @@ pub struct ProfileRow {
     /// Cold pressure at the cell centre (absolute), Pa.
     #[serde(rename = "p_cold_Pa")]
     pub p_cold_pa: Option<f64>,
+    /// Whether the hot film correlation is inside its published range here (plots).
+    #[serde(skip)]
+    pub hot_in_range: bool,
+    /// Whether the cold film correlation is inside its published range here.
+    #[serde(skip)]
+    pub cold_in_range: bool,
+    /// Fin efficiency η_f of each face (hot, cold; None on a bare face).
+    #[serde(skip)]
+    pub fin_efficiency: [Option<f64>; 2],
+    /// Overall surface efficiency η_o of each face.
+    #[serde(skip)]
+    pub surface_efficiency: [f64; 2],
+}
+
+/// Where a quantity is smallest and largest over the cells.
+#[derive(Debug, Clone, Serialize)]
+pub struct Extremes {
+    /// Smallest value.
+    pub min: f64,
+    /// Position of the smallest, m along the exchanger (a network: the first direction).
+    pub min_at_m: f64,
+    /// A network cell's (i, j, k) of the smallest (absent on an axial line).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub min_cell: Option<[usize; 3]>,
+    /// Largest value.
+    pub max: f64,
+    /// Position of the largest, m.
+    pub max_at_m: f64,
+    /// A network cell's (i, j, k) of the largest.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub max_cell: Option<[usize; 3]>,
+}
+
+impl Extremes {
+    /// Extremes of `value` over `rows` (None if it is None on every row).
+    pub fn over<'a>(rows: impl IntoIterator<Item = &'a ProfileRow>, value: impl Fn(&ProfileRow) -> Option<f64>) -> Option<Self> {
+        let cell = |r: &ProfileRow| r.i.map(|i| [i, r.j.unwrap_or(0), r.k.unwrap_or(0)]);
+        let mut out: Option<Self> = None;
+        for r in rows {
+            let Some(v) = value(r) else { continue };
+            let e = out.get_or_insert(Extremes { min: v, min_at_m: r.x_m, min_cell: cell(r), max: v, max_at_m: r.x_m, max_cell: cell(r) });
+            if v < e.min {
+                (e.min, e.min_at_m, e.min_cell) = (v, r.x_m, cell(r));
+            }
+            if v > e.max {
+                (e.max, e.max_at_m, e.max_cell) = (v, r.x_m, cell(r));
+            }
+        }
+        out
+    }
+}
+
+/// One stream's local conditions over the exchanger: what an engineer checks against
+/// velocity, erosion, fouling and film-temperature limits.
+#[derive(Debug, Clone, Serialize)]
+pub struct StreamConditions {
+    /// Heat-transfer area on this stream's face of the wall (fins included), m².
+    pub area_m2: f64,
+    /// Mean velocity in the free-flow area, m/s (None without flow geometry).
+    pub velocity_m_s: Option<Extremes>,
+    /// Reynolds number (None without flow geometry).
+    pub reynolds: Option<Extremes>,
+    /// Film coefficient, W/(m²·K).
+    pub h_W_m2K: Extremes,
+    /// Wetted surface temperature on this face, °C (see profiles.csv `hot_surface_C`).
+    pub surface_C: Extremes,
+    /// Fin efficiency η_f (finned surfaces only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub fin_efficiency: Option<Extremes>,
+    /// Overall surface efficiency η_o = 1 − (A_f/A)(1 − η_f) (finned surfaces only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub surface_efficiency: Option<Extremes>,
+}
+
+/// The smallest local hot-to-cold temperature difference and where it is.
+#[derive(Debug, Clone, Serialize)]
+pub struct Approach {
+    /// Smallest T_hot − T_cold at one position, K (the pinch of the T–Q diagram).
+    pub minimum_K: f64,
+    /// Where, m along the exchanger (a network: the first direction of its cell).
+    pub at_m: f64,
+    /// A network cell's (i, j, k) (absent on an axial line).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub cell: Option<[usize; 3]>,
 }
 
 /// How the grid result compares with the lumped hand result.
@@ -299,6 +396,10 @@ pub struct SteadyReport {
     pub arrangement: &'static str,
     /// Spatial scheme (its formal order is `grid_error_estimate.order`).
     pub scheme: &'static str,
+    /// hxgrid version that wrote the result.
+    pub version: &'static str,
+    /// SHA-256 of the case file's text, hex (None for an exchanger built in code).
+    pub input_sha256: Option<String>,
     /// Length, m.
     pub length_m: f64,
     /// Hot fluid description.
@@ -337,6 +438,14 @@ pub struct SteadyReport {
     pub energy_imbalance_W: f64,
     /// Thermodynamic maximum duty, W.
     pub max_duty_W: f64,
+    /// The area the local U and heat flux are referred to, m².
+    pub reference_area_m2: f64,
+    /// Hot stream's local conditions: area, velocity, Re, h, surface temperature, fins.
+    pub hot_conditions: StreamConditions,
+    /// Cold stream's local conditions.
+    pub cold_conditions: StreamConditions,
+    /// Smallest local temperature approach and where.
+    pub minimum_approach: Approach,
     /// Hot film model and its published validity range.
     pub hot_film_model: String,
     /// Cold film model and its published validity range.
@@ -413,11 +522,39 @@ pub struct SteadyReport {
     /// A network's fields over its face, for plots.
     #[serde(skip)]
     pub fields: Option<NetworkFields>,
+    /// Each stream's Reynolds bands inside its film correlation's range, for plots.
+    #[serde(skip)]
+    pub reynolds_bands: [Vec<(f64, f64)>; 2],
+    /// The case as given and as interpreted (None for an exchanger built in code).
+    #[serde(skip)]
+    pub input: Option<std::sync::Arc<InputEcho>>,
 }
+
+/// The case behind a result, for the report: the file as given and the values as the
+/// program took them, with units.
+#[derive(Debug, Clone, Default)]
+pub struct InputEcho {
+    /// Where the case came from (a path).
+    pub origin: String,
+    /// The case file's text, as read.
+    pub text: String,
+    /// SHA-256 of that text, hex.
+    pub sha256: String,
+    /// (quantity, value with unit) as interpreted, in reading order.
+    pub interpreted: Vec<(String, String)>,
+}
+
+/// The version written into every result.
+pub const VERSION: &str = env!("CARGO_PKG_VERSION");
 
 impl SteadyReport {
     /// The tracked quantities of this result.
     pub fn key_quantities(&self) -> KeyQuantities {
         KeyQuantities { duty_w: self.duty_W, hot_outlet_c: self.hot_outlet_C, cold_outlet_c: self.cold_outlet_C }
+    }
+
+    /// The report with the case behind it (its SHA-256 goes into the summary).
+    pub fn with_input(self, echo: InputEcho) -> Self {
+        SteadyReport { input_sha256: Some(echo.sha256.clone()), input: Some(std::sync::Arc::new(echo)), ..self }
     }
 }

@@ -41,6 +41,10 @@ pub struct TransientReport {
     pub stop: Option<crate::solve::transient::Stop>,
     /// Spatial scheme.
     pub scheme: &'static str,
+    /// hxgrid version that wrote the result.
+    pub version: &'static str,
+    /// SHA-256 of the case file's text, hex (None for an exchanger built in code).
+    pub input_sha256: Option<String>,
     /// Metal heat capacities in the model (set by the caller that knows the case).
     pub storage: Option<crate::case::Storage>,
     /// Integrator.
@@ -86,4 +90,14 @@ pub struct TransientReport {
     pub network: Option<crate::model::Network>,
     /// The arrangement, as the case file names it.
     pub arrangement: &'static str,
+    /// The case as given and as interpreted (report only).
+    #[serde(skip)]
+    pub input: Option<std::sync::Arc<crate::results::InputEcho>>,
+}
+
+impl TransientReport {
+    /// The report with the case behind it (its SHA-256 goes into transient.json).
+    pub fn with_input(self, echo: crate::results::InputEcho) -> Self {
+        TransientReport { input_sha256: Some(echo.sha256.clone()), input: Some(std::sync::Arc::new(echo)), ..self }
+    }
 }

@@ -8,6 +8,7 @@ use crate::results::*;
 use crate::solve::{solve_steady, solve_steady_from, Observer, SilentObserver, SolveError, SteadySettings, SteadySolution};
 use nalgebra::Vector3;
 
+pub mod echo;
 pub mod network;
 
 /// Duty and outlets of a solution.
@@ -267,8 +268,15 @@ pub(crate) fn assemble(
         let within = |s: &crate::model::Stream, props, bulk, film: &crate::transfer::FilmResult| {
             film.in_range && crate::transfer::film::property_ratios_within(&*s.film, &*s.fluid, props, bulk, *wall, film.reynolds)
         };
-        outside[0] += usize::from(!within(&ex.hot, &d.hot_props, d.hot_bulk_c, &d.hot_film));
-        outside[1] += usize::from(!within(&ex.cold, &d.cold_props, d.cold_bulk_c, &d.cold_film));
+        let in_range = [within(&ex.hot, &d.hot_props, d.hot_bulk_c, &d.hot_film), within(&ex.cold, &d.cold_props, d.cold_bulk_c, &d.cold_film)];
+        outside[0] += usize::from(!in_range[0]);
+        outside[1] += usize::from(!in_range[1]);
+        // The wetted surface: the bulk less the drop across the film (on η_o A).
+        let film_r = |s: &crate::model::Stream, f: &crate::transfer::FilmResult| 1.0 / (f.h * s.channel.area_per_length_m * f.surface_efficiency);
+        let (p_hot, p_cold) = (centre(&hot_faces_pa, i), centre(&cold_faces_pa, i));
+        let velocity = |s: &crate::model::Stream, bulk: f64, p: Option<f64>| {
+            s.channel.flow_area_m2.map(|a| s.mass_flow_kg_s / (a * s.fluid.density_at(bulk, p.unwrap_or(s.inlet_pressure_pa))))
+        };
         profile.push(ProfileRow {
             i: cell.map(|c| c.0[0]),
             j: cell.map(|c| c.0[1]),
@@ -279,6 +287,8 @@ pub(crate) fn assemble(
             hot_c: d.hot_bulk_c,
             cold_c: d.cold_bulk_c,
             wall_c: *wall,
+            hot_surface_c: d.hot_bulk_c - d.balance.hot_to_wall_w / dx * film_r(&ex.hot, &d.hot_film),
+            cold_surface_c: d.cold_bulk_c + d.balance.wall_to_cold_w / dx * film_r(&ex.cold, &d.cold_film),
             heat_rate_per_length_w_m: q_per_length,
             heat_flux_w_m2: q_per_length / ex.reference_area_per_length_m,
             u_w_m2k: d.ua_per_length_w_mk / ex.reference_area_per_length_m,
@@ -286,6 +296,8 @@ pub(crate) fn assemble(
             h_cold_w_m2k: d.cold_film.h,
             re_hot: d.hot_film.reynolds,
             re_cold: d.cold_film.reynolds,
+            velocity_hot_m_s: velocity(&ex.hot, d.hot_bulk_c, p_hot),
+            velocity_cold_m_s: velocity(&ex.cold, d.cold_bulk_c, p_cold),
             pr_hot: d.hot_props.prandtl(),
             pr_cold: d.cold_props.prandtl(),
             mu_hot_pa_s: d.hot_props.viscosity,
@@ -296,8 +308,12 @@ pub(crate) fn assemble(
             rho_cold_kg_m3: d.cold_props.density,
             k_hot_w_mk: d.hot_props.conductivity,
             k_cold_w_mk: d.cold_props.conductivity,
-            p_hot_pa: centre(&hot_faces_pa, i),
-            p_cold_pa: centre(&cold_faces_pa, i),
+            p_hot_pa: p_hot,
+            p_cold_pa: p_cold,
+            hot_in_range: in_range[0],
+            cold_in_range: in_range[1],
+            fin_efficiency: [d.hot_film.fin_efficiency, d.cold_film.fin_efficiency],
+            surface_efficiency: [d.hot_film.surface_efficiency, d.cold_film.surface_efficiency],
         });
     }
     let q = sol.q;
@@ -324,11 +340,12 @@ pub(crate) fn assemble(
     for (k, (name, stream)) in [("hot", &ex.hot), ("cold", &ex.cold)].into_iter().enumerate() {
         if outside[k] > 0 {
             warnings.push(format!(
-                "{name} stream: {} of {} cells are outside the validity range of the {} correlation ({}); its film coefficient there is extrapolated or blended and less certain",
+                "{name} stream: {} of {} cells are outside the validity range of the {} correlation ({}){}; its film coefficient there is extrapolated or blended and less certain",
                 outside[k],
                 sol.details.len(),
                 stream.film.name(),
-                stream.film.validity()
+                stream.film.validity(),
+                where_outside(&profile, k == 0, &*stream.film)
             ));
         }
     }
@@ -435,10 +452,45 @@ pub(crate) fn assemble(
         None => (None, None),
     };
     let [hot_faces_c, cold_faces_c] = sol.faces_c;
+    let minimum_approach = match &fields {
+        // A network: hot and cold in the same cell.
+        Some(_) => profile
+            .iter()
+            .map(|r| (r.hot_c - r.cold_c, r.x_m, r.i.map(|i| [i, r.j.unwrap_or(0), r.k.unwrap_or(0)])))
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+            .map(|(d, x, cell)| Approach { minimum_K: d, at_m: x, cell }),
+        // An axial line: the streams face to face, the terminal differences included.
+        None => hot_faces_c
+            .iter()
+            .zip(&cold_faces_c)
+            .zip(&sol.faces_m)
+            .map(|((h, c), x)| (h - c, *x))
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+            .map(|(d, x)| Approach { minimum_K: d, at_m: x, cell: None }),
+    }
+    .unwrap_or(Approach { minimum_K: th_in - tc_in, at_m: 0.0, cell: None });
+    let conditions = |hot: bool| {
+        let s = if hot { &ex.hot } else { &ex.cold };
+        let k = usize::from(!hot);
+        let pick = |a: f64, b: f64| if hot { a } else { b };
+        let finned = profile.iter().any(|r| r.fin_efficiency[k].is_some());
+        StreamConditions {
+            area_m2: s.channel.area_per_length_m * ex.length_m,
+            velocity_m_s: Extremes::over(&profile, |r| if hot { r.velocity_hot_m_s } else { r.velocity_cold_m_s }),
+            reynolds: Extremes::over(&profile, |r| if hot { r.re_hot } else { r.re_cold }),
+            h_W_m2K: Extremes::over(&profile, |r| Some(pick(r.h_hot_w_m2k, r.h_cold_w_m2k))).expect("at least one cell"),
+            surface_C: Extremes::over(&profile, |r| Some(pick(r.hot_surface_c, r.cold_surface_c))).expect("at least one cell"),
+            fin_efficiency: Extremes::over(&profile, |r| r.fin_efficiency[k]),
+            surface_efficiency: finned.then(|| Extremes::over(&profile, |r| Some(r.surface_efficiency[k]))).flatten(),
+        }
+    };
+    let (hot_conditions, cold_conditions) = (conditions(true), conditions(false));
     SteadyReport {
         case: case_name.to_string(),
         arrangement: arr.as_str(),
         scheme: ex.scheme.as_str(),
+        version: crate::results::VERSION,
+        input_sha256: None,
         length_m: ex.length_m,
         hot_fluid: ex.hot.fluid.name(),
         cold_fluid: ex.cold.fluid.name(),
@@ -458,6 +510,10 @@ pub(crate) fn assemble(
         cold_heat_gained_W: cold_gain,
         energy_imbalance_W: hot_release - cold_gain,
         max_duty_W: ex.max_duty_w(),
+        reference_area_m2: ex.reference_area_per_length_m * ex.length_m,
+        hot_conditions,
+        cold_conditions,
+        minimum_approach,
         hot_film_model: format!("{}: {}", ex.hot.film.name(), ex.hot.film.validity()),
         cold_film_model: format!("{}: {}", ex.cold.film.name(), ex.cold.film.validity()),
         hot_cells_outside_correlation_range: outside[0],
@@ -488,7 +544,38 @@ pub(crate) fn assemble(
         hot_faces_pa,
         cold_faces_pa,
         fields,
+        reynolds_bands: [ex.hot.film.reynolds_bands(), ex.cold.film.reynolds_bands()],
+        input: None,
     }
+}
+
+/// Where along the exchanger a stream's cells are outside its correlation's range and in
+/// which regime: " at x = a–b m (Re c–d, laminar)"; empty where all are inside.
+fn where_outside(profile: &[ProfileRow], hot: bool, film: &dyn crate::transfer::FilmCorrelation) -> String {
+    let out: Vec<&ProfileRow> = profile.iter().filter(|r| !if hot { r.hot_in_range } else { r.cold_in_range }).collect();
+    let Some(x) = Extremes::over(out.iter().copied(), |r| Some(r.x_m)) else { return String::new() };
+    let num = crate::text::num;
+    let at = if x.max - x.min > 0.0 { format!(" at x = {}–{} m", num(x.min), num(x.max)) } else { format!(" at x = {} m", num(x.min)) };
+    let re: Vec<f64> = out.iter().filter_map(|r| if hot { r.re_hot } else { r.re_cold }).collect();
+    let pr: Vec<f64> = out.iter().map(|r| if hot { r.pr_hot } else { r.pr_cold }).collect();
+    let range = |v: &[f64]| {
+        let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        if hi - lo > 1e-9 * hi.abs() { format!("{}–{}", num(lo), num(hi)) } else { num(lo) }
+    };
+    let mut what = Vec::new();
+    if !re.is_empty() {
+        what.push(format!("Re {}", range(&re)));
+        // The regimes of flow in a duct (common practice: laminar below 2300, turbulent
+        // above 10⁴) where the correlation is one for ducts.
+        if matches!(film.name(), "gnielinski" | "dittus_boelter" | "sieder_tate" | "pitla") {
+            let (lo, hi) = re.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+            let regime = |re: f64| if re <= 2300.0 { "laminar" } else if re < 1e4 { "transitional" } else { "turbulent" };
+            let (a, b) = (regime(lo), regime(hi));
+            what.push(if a == b { a.to_string() } else { format!("{a} to {b}") });
+        }
+    }
+    what.push(format!("Pr {}", range(&pr)));
+    format!("{at} ({})", what.join(", "))
 }
 
 /// Face pressures of both streams, marched from each inlet in its own flow direction

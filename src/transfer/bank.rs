@@ -187,6 +187,9 @@ impl FilmCorrelation for Zukauskas {
     fn uses_wall_temperature(&self) -> bool {
         true
     }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        vec![(if self.bank.rows < 20 { 1e3 } else { 10.0 }, 2e6)]
+    }
     fn validity(&self) -> String {
         format!(
             "Zukauskas 10 ≤ Re_max ≤ 2·10⁶, 0.7 ≤ Pr ≤ 500 (1972 constants; 1987 constants for 10² ≤ Re_max < 10³){}",

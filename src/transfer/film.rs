@@ -37,13 +37,15 @@ pub struct FilmResult {
     pub nusselt: Option<f64>,
     /// Overall surface efficiency η_o of a finned surface (1 for a bare one).
     pub surface_efficiency: f64,
+    /// Fin efficiency η_f of a finned surface (None for a bare one).
+    pub fin_efficiency: Option<f64>,
     /// False when the local state is outside the correlation's published validity range.
     pub in_range: bool,
 }
 
 impl FilmResult {
     pub(crate) fn bare(h: f64, reynolds: Option<f64>, nusselt: Option<f64>, in_range: bool) -> Self {
-        Self { h, reynolds, nusselt, surface_efficiency: 1.0, in_range }
+        Self { h, reynolds, nusselt, surface_efficiency: 1.0, fin_efficiency: None, in_range }
     }
 }
 
@@ -59,6 +61,11 @@ pub trait FilmCorrelation: Send + Sync + Debug {
     }
     /// The published validity range, in words (for reports).
     fn validity(&self) -> String;
+    /// The Reynolds-number bands in which the correlation is used within its published
+    /// range (for plots; empty where the range is not one of Re alone, e.g. a fixed value).
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        Vec::new()
+    }
     /// For a correlation written with bulk properties, the range of c̄p/cp_b and ρ_w/ρ_b
     /// (wall over bulk) within which that is valid at Reynolds number `reynolds`; None where
     /// no such limit applies. Checked when results are reported, not in the solver's loop
@@ -134,6 +141,9 @@ impl FilmCorrelation for ScaledFilm {
     }
     fn validity(&self) -> String {
         self.inner.validity()
+    }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        self.inner.reynolds_bands()
     }
     fn bulk_property_range(&self, reynolds: f64) -> Option<(f64, f64)> {
         self.inner.bulk_property_range(reynolds)

@@ -116,6 +116,9 @@ impl FilmCorrelation for Gnielinski {
     fn validity(&self) -> String {
         "laminar Re < 2300; turbulent 10⁴ ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000 (Gnielinski 1976)".into()
     }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        vec![(0.0, RE_LAMINAR), (1e4, 5e6)]
+    }
     fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
         Some(super::film::StatedAccuracy { percent: 10.0, source: GNIELINSKI_ACCURACY })
     }
@@ -267,6 +270,15 @@ impl FilmCorrelation for InternalFlow {
     // outside 0.9 … 1.1 (a common-practice bound [M]) are counted outside the range.
     fn bulk_property_range(&self, reynolds: f64) -> Option<(f64, f64)> {
         (reynolds > RE_LAMINAR && self.wall_correction == WallCorrection::None && self.turbulent != Turbulent::Pitla).then_some(PROPERTY_RATIO_RANGE)
+    }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        // Blended cells (2300 < Re < 10⁴) are counted outside every range.
+        let low = match (self.transition, self.turbulent) {
+            (Transition::Blend, _) | (_, Turbulent::DittusBoelter | Turbulent::SiederTate) => 1e4,
+            _ => 3000.0,
+        };
+        let high = if matches!(self.turbulent, Turbulent::Gnielinski | Turbulent::Pitla) { 5e6 } else { f64::INFINITY };
+        vec![(0.0, RE_LAMINAR), (low, high)]
     }
     fn validity(&self) -> String {
         let lam = match self.laminar {

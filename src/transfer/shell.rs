@@ -576,6 +576,9 @@ impl FilmCorrelation for BellDelaware {
     fn validity(&self) -> String {
         "Bell–Delaware (Taborek) 1 ≤ Re_s ≤ 10⁵, segmental baffles cut 15–45 % of D_s".into()
     }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        vec![(1.0, 1e5)]
+    }
     /// The equivalent Darcy factor on the channel (S_m, d, one shell length per shell) that
     /// reproduces the zone sum: every zone scales as G²/ρ at fixed Re.
     fn darcy_friction(&self, channel: &Channel, reynolds: f64) -> Option<f64> {
@@ -664,6 +667,9 @@ impl FilmCorrelation for Kern {
     }
     fn validity(&self) -> String {
         "Kern 2·10³ ≤ Re ≤ 10⁶ on the equivalent diameter (no leakage or bypass)".into()
+    }
+    fn reynolds_bands(&self) -> Vec<(f64, f64)> {
+        vec![(2e3, 1e6)]
     }
     fn friction_in_range(&self, reynolds: f64) -> bool {
         (400.0..=1e6).contains(&reynolds)
