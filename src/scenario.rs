@@ -7,7 +7,7 @@ use crate::results::CAUTION;
 use crate::solve::transient::{simulate, Initial, Inputs, Integrator, TransientError, TransientObserver, TransientSettings};
 use crate::solve::{solve_steady, SilentObserver, SteadySettings};
 
-pub use crate::results::transient::{OutletResponse, TransientReport};
+pub use crate::results::transient::{InputChange, OutletResponse, Peak, Response, TransientReport, WallExtremes};
 
 /// Settling time to fraction `p` of the change: the time after `t_ref` from which the
 /// series stays within (1 − p)|change| of its final value (interpolated at the crossing).
@@ -38,6 +38,79 @@ pub fn overshoot_percent(values: &[f64]) -> f64 {
     }
     let beyond = values.iter().map(|v| (v - last) * change.signum()).fold(0.0, f64::max);
     100.0 * beyond / change.abs()
+}
+
+/// A net change below this is no change for the response metrics, K (common practice: a
+/// tenth of a kelvin is below what plant instruments resolve).
+const NEGLIGIBLE_CHANGE_K: f64 = 0.1;
+
+/// The response of `values` at `times` (one window), measured from `t0`. Settling and
+/// overshoot are left out (None) when the net change is negligible: under
+/// [`NEGLIGIBLE_CHANGE_K`] or under 5 % of the swing (a disturbance that returns), where a
+/// percentage of the change would be meaningless.
+pub fn response(times: &[f64], values: &[f64], t0: f64) -> Response {
+    let (first, last) = (values[0], *values.last().expect("at least one sample"));
+    let change = last - first;
+    let (lo, hi) = values.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+    let meaningful = change.abs() >= NEGLIGIBLE_CHANGE_K && change.abs() >= 0.05 * (hi - lo);
+    let settle = |p: f64| if meaningful { settling_time(times, values, t0, p) } else { None };
+    Response {
+        initial_C: first,
+        final_C: last,
+        change_K: change,
+        settling_63_s: settle(0.63),
+        settling_95_s: settle(0.95),
+        settling_99_s: settle(0.99),
+        overshoot_percent: meaningful.then(|| overshoot_percent(values)),
+        swing_K: hi - lo,
+    }
+}
+
+/// Every change of every input in `inputs` that falls in the run (start before `end`), with
+/// both outlets' responses from its start to the next change of any input or the end.
+fn input_changes(inputs: &Inputs, samples: &[crate::solve::transient::Sample], end: f64) -> Vec<InputChange> {
+    let all: Vec<(&'static str, &'static str, (f64, f64, f64, f64))> = [
+        ("hot inlet temperature", "°C", &inputs.hot_inlet_c),
+        ("hot mass flow", "kg/s", &inputs.hot_flow_kg_s),
+        ("cold inlet temperature", "°C", &inputs.cold_inlet_c),
+        ("cold mass flow", "kg/s", &inputs.cold_flow_kg_s),
+    ]
+    .into_iter()
+    .flat_map(|(name, unit, s)| s.changes().into_iter().map(move |c| (name, unit, c)))
+    .filter(|(_, _, c)| c.1 >= 0.0 && c.0 < end)
+    .collect();
+    let eps = 1e-9 * end.max(1.0);
+    let mut out: Vec<InputChange> = all
+        .iter()
+        .map(|&(input, unit, (start, stop, from, to))| {
+            let start = start.max(0.0);
+            let window_end = all.iter().map(|c| c.2 .0).filter(|&t| t > start + eps).fold(end, f64::min);
+            let window: Vec<_> = samples.iter().filter(|s| s.time_s >= start - eps && s.time_s <= window_end + eps).collect();
+            let times: Vec<f64> = window.iter().map(|s| s.time_s).collect();
+            let of = |f: fn(&crate::solve::transient::Sample) -> f64| -> Response {
+                let v: Vec<f64> = window.iter().map(|s| f(s)).collect();
+                if v.is_empty() {
+                    response(&[start], &[f(&samples[samples.len() - 1])], start)
+                } else {
+                    response(&times, &v, start)
+                }
+            };
+            InputChange {
+                input,
+                unit,
+                kind: if stop > start { "ramp" } else { "step" },
+                start_s: start,
+                end_s: stop.max(start),
+                from,
+                to,
+                window_end_s: window_end,
+                hot_outlet: of(|s| s.hot_outlet_C),
+                cold_outlet: of(|s| s.cold_outlet_C),
+            }
+        })
+        .collect();
+    out.sort_by(|a, b| a.start_s.total_cmp(&b.start_s));
+    out
 }
 
 /// Simulate and summarise.
@@ -90,24 +163,42 @@ pub fn run(
     // The response is measured on the samples from the reference time on.
     let from = times.iter().position(|&t| t >= reference - 1e-9).unwrap_or(0);
     let times_from = &times[from..];
-    let response = |values: Vec<f64>, steady_final: Option<f64>| {
-        let v = &values[from..];
+    let outlet = |values: Vec<f64>, steady_final: Option<f64>| {
+        let r = response(times_from, &values[from..], reference);
+        let (min, max) = values.iter().zip(&times).fold(((f64::INFINITY, 0.0), (f64::NEG_INFINITY, 0.0)), |(lo, hi), (&v, &t)| {
+            (if v < lo.0 { (v, t) } else { lo }, if v > hi.0 { (v, t) } else { hi })
+        });
         OutletResponse {
-            initial_C: v[0],
-            final_C: *v.last().unwrap(),
-            change_K: v.last().unwrap() - v[0],
-            settling_63_s: settling_time(times_from, v, reference, 0.63),
-            settling_95_s: settling_time(times_from, v, reference, 0.95),
-            settling_99_s: settling_time(times_from, v, reference, 0.99),
-            overshoot_percent: overshoot_percent(v),
+            difference_from_steady_K: steady_final.map(|s| r.final_C - s),
+            response: r,
             steady_final_C: steady_final,
-            difference_from_steady_K: steady_final.map(|s| v.last().unwrap() - s),
+            min_C: min.0,
+            min_at_s: min.1,
+            max_C: max.0,
+            max_at_s: max.1,
         }
     };
+    let peak = |value: fn(&crate::solve::transient::Sample) -> (f64, f64), signed: bool| {
+        let best = run
+            .samples
+            .iter()
+            .map(|s| (value(s), s.time_s))
+            .fold(None::<((f64, f64), f64)>, |a, b| match a {
+                Some(a) if (if signed { a.0 .0.abs() >= b.0 .0.abs() } else { a.0 .0 >= b.0 .0 }) => Some(a),
+                _ => Some(b),
+            })
+            .expect("at least one sample");
+        Peak { value: best.0 .0, at_s: best.1, at_m: best.0 .1 }
+    };
+    let wall = WallExtremes {
+        hottest_C: peak(|s| (s.max_wall_C, s.max_wall_at_m), false),
+        fastest_change_K_s: peak(|s| (s.max_wall_rate_K_s, s.max_wall_rate_at_m), true),
+        largest_difference_K: peak(|s| (s.max_wall_difference_K, s.max_wall_difference_at_m), true),
+    };
+    let changes = input_changes(inputs, &run.samples, run.samples.last().map_or(end, |s| s.time_s));
     let (first, last) = (&run.samples[0], run.samples.last().unwrap());
     let stored = (last.fluid_energy_J + last.wall_energy_J) - (first.fluid_energy_J + first.wall_energy_J);
     let closure = last.net_inflow_J - stored;
-    let max_rate = run.samples.iter().map(|s| s.max_wall_rate_K_s).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
     Ok(TransientReport {
         case: case_name.to_string(),
         status: if run.stopped.is_some() { "stopped" } else { "completed" },
@@ -134,13 +225,15 @@ pub fn run(
             Initial::Uniform(t) => format!("uniform {t} °C (fluids and wall)"),
         },
         reference_time_s: reference,
-        hot_outlet: response(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.map(|s| s.0)),
-        cold_outlet: response(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.map(|s| s.1)),
+        hot_outlet: outlet(run.samples.iter().map(|s| s.hot_outlet_C).collect(), steady.map(|s| s.0)),
+        cold_outlet: outlet(run.samples.iter().map(|s| s.cold_outlet_C).collect(), steady.map(|s| s.1)),
         hot_heat_J: last.hot_heat_J,
         energy_closure_J: closure,
         energy_closure_relative: if last.hot_heat_J != 0.0 { (closure / last.hot_heat_J).abs() } else { 0.0 },
-        max_wall_C: run.samples.iter().map(|s| s.max_wall_C).fold(f64::NEG_INFINITY, f64::max),
-        max_wall_rate_K_s: max_rate,
+        max_wall_C: wall.hottest_C.value,
+        max_wall_rate_K_s: wall.fastest_change_K_s.value,
+        wall,
+        input_changes: changes,
         stats: run.stats,
         caution: CAUTION,
         faces_m: if network.is_some() { Vec::new() } else { (0..=run.cells).map(|j| j as f64 * ex.length_m / run.cells as f64).collect() },

@@ -19,23 +19,53 @@ pub fn transient(r: &TransientReport) -> String {
         );
     }
     let f = |v: Option<f64>| v.map(|x| format!("{x:.1} s")).unwrap_or_else(|| "—".into());
-    let _ =
-        writeln!(out, "\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}", "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K");
+    let pct = |v: Option<f64>| v.map(|x| format!("{x:.2}%")).unwrap_or_else(|| "—".into());
+    let _ = writeln!(
+        out,
+        "\n{:<14}{:>11}{:>11}{:>10}{:>10}{:>10}{:>11}{:>16}{:>22}{:>22}",
+        "", "start °C", "end °C", "63 %", "95 %", "99 %", "overshoot", "end − steady K", "lowest °C (at s)", "highest °C (at s)"
+    );
     for (name, o) in [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)] {
+        let v = &o.response;
         let _ = writeln!(
             out,
-            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>10.2}%{:>16}",
+            "{:<14}{:>11.3}{:>11.3}{:>10}{:>10}{:>10}{:>11}{:>16}{:>22}{:>22}",
             name,
-            o.initial_C,
-            o.final_C,
-            f(o.settling_63_s),
-            f(o.settling_95_s),
-            f(o.settling_99_s),
-            o.overshoot_percent,
-            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (none)".into())
+            v.initial_C,
+            v.final_C,
+            f(v.settling_63_s),
+            f(v.settling_95_s),
+            f(v.settling_99_s),
+            pct(v.overshoot_percent),
+            o.difference_from_steady_K.map(|d| format!("{d:.2e}")).unwrap_or_else(|| "— (none)".into()),
+            format!("{:.3} ({})", o.min_C, crate::text::num(o.min_at_s)),
+            format!("{:.3} ({})", o.max_C, crate::text::num(o.max_at_s)),
         );
     }
-    let _ = writeln!(out, "\nhottest wall {:.2} °C; fastest wall change {:.3} K/s", r.max_wall_C, r.max_wall_rate_K_s);
+    if !r.input_changes.is_empty() {
+        let _ = writeln!(out, "\nresponse to each input change (from its start to the next change):");
+        for c in &r.input_changes {
+            let when = if c.kind == "step" { format!("at {} s", crate::text::num(c.start_s)) } else { format!("{}–{} s", crate::text::num(c.start_s), crate::text::num(c.end_s)) };
+            let _ = writeln!(out, "  {} {} {} → {} {} ({}):", c.input, c.kind, crate::text::num(c.from), crate::text::num(c.to), c.unit, when);
+            for (name, v) in [("hot outlet", &c.hot_outlet), ("cold outlet", &c.cold_outlet)] {
+                let _ = writeln!(
+                    out,
+                    "    {name:<12} {:+.3} K, 63 % {}, 95 % {}, 99 % {}, overshoot {}, swing {:.3} K",
+                    v.change_K,
+                    f(v.settling_63_s),
+                    f(v.settling_95_s),
+                    f(v.settling_99_s),
+                    pct(v.overshoot_percent),
+                    v.swing_K
+                );
+            }
+        }
+    }
+    let w = &r.wall;
+    let at = |p: &crate::results::Peak| format!("at t = {} s, x = {} m", crate::text::num(p.at_s), crate::text::num(p.at_m));
+    let _ = writeln!(out, "\nwall: hottest {:.2} °C {}", w.hottest_C.value, at(&w.hottest_C));
+    let _ = writeln!(out, "      fastest change {:.3} K/s {}", w.fastest_change_K_s.value, at(&w.fastest_change_K_s));
+    let _ = writeln!(out, "      largest difference through its thickness {:.3} K {}", w.largest_difference_K.value, at(&w.largest_difference_K));
     let _ = writeln!(out, "energy closure {:.3e} J of {:.3e} J transferred ({:.1e})", r.energy_closure_J, r.hot_heat_J, r.energy_closure_relative);
     let st = &r.stats;
     let _ = writeln!(

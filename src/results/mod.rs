@@ -5,7 +5,7 @@ use crate::lumped::LumpedResult;
 use serde::Serialize;
 
 pub mod transient;
-pub use transient::{OutletResponse, TransientReport};
+pub use transient::{InputChange, OutletResponse, Peak, Response, TransientReport, WallExtremes};
 
 /// The caution every report carries.
 pub const CAUTION: &str = "Engineering estimate from a single-phase finite-volume cell model. Boiling and \

@@ -4,29 +4,103 @@
 use crate::solve::transient::{Sample, Snapshot, Stats};
 use serde::Serialize;
 
-/// How one outlet responded.
+/// How one outlet responded over a window of the run (from an input change, or from the
+/// reference time, to the next change or the end).
 #[derive(Debug, Clone, Serialize)]
 #[allow(non_snake_case)]
-pub struct OutletResponse {
-    /// At the reference time, °C.
+pub struct Response {
+    /// At the window's start, °C.
     pub initial_C: f64,
-    /// At the end, °C.
+    /// At the window's end, °C.
     pub final_C: f64,
     /// Final − initial, K.
     pub change_K: f64,
-    /// Time from the reference time until the outlet stays within 37 % of the change, s.
+    /// Time from the window's start until the outlet stays within 37 % of the change, s
+    /// (null: no change worth the name, see `overshoot_percent`, or not settled in the window).
     pub settling_63_s: Option<f64>,
     /// … within 5 %, s.
     pub settling_95_s: Option<f64>,
     /// … within 1 %, s.
     pub settling_99_s: Option<f64>,
-    /// Largest excursion beyond the final value in the direction of the change, % of |change|.
-    pub overshoot_percent: f64,
+    /// Largest excursion beyond the final value in the direction of the change, % of |change|;
+    /// null where the net change is under 0.1 K or under 5 % of the outlet's swing in the
+    /// window (a disturbance that returns: read `swing_K` and the peaks instead).
+    pub overshoot_percent: Option<f64>,
+    /// Largest − smallest value in the window, K.
+    pub swing_K: f64,
+}
+
+/// How one outlet responded from the reference time to the end, beside the steady answer.
+#[derive(Debug, Clone, Serialize)]
+#[allow(non_snake_case)]
+pub struct OutletResponse {
+    /// The response from the reference time to the end.
+    #[serde(flatten)]
+    pub response: Response,
     /// Steady solver's outlet for the final inputs, °C (null where no steady state is
     /// defined: both flows stopped at the end).
     pub steady_final_C: Option<f64>,
     /// final − steady, K (how far from settled the run ended).
     pub difference_from_steady_K: Option<f64>,
+    /// Lowest value over the whole run, °C, and when, s.
+    pub min_C: f64,
+    /// When the lowest value was reached, s.
+    pub min_at_s: f64,
+    /// Highest value over the whole run, °C.
+    pub max_C: f64,
+    /// When the highest value was reached, s.
+    pub max_at_s: f64,
+}
+
+/// One change of one input schedule (a step, a ramp, or one segment of a table) and both
+/// outlets' responses to it, measured from its start to the next change of any input (or
+/// the end of the run).
+#[derive(Debug, Clone, Serialize)]
+pub struct InputChange {
+    /// Which input ("hot inlet temperature", "hot mass flow", …).
+    pub input: &'static str,
+    /// Its unit.
+    pub unit: &'static str,
+    /// "step" or "ramp".
+    pub kind: &'static str,
+    /// Start of the change, s.
+    pub start_s: f64,
+    /// End of the change (= start for a step), s.
+    pub end_s: f64,
+    /// Value before.
+    pub from: f64,
+    /// Value after.
+    pub to: f64,
+    /// End of the window the responses are measured over, s.
+    pub window_end_s: f64,
+    /// Hot outlet's response.
+    pub hot_outlet: Response,
+    /// Cold outlet's response.
+    pub cold_outlet: Response,
+}
+
+/// A value reached at one time and place.
+#[derive(Debug, Clone, Serialize)]
+pub struct Peak {
+    /// The value.
+    pub value: f64,
+    /// When, s.
+    pub at_s: f64,
+    /// Where, m along the exchanger (a network: the first direction).
+    pub at_m: f64,
+}
+
+/// The wall's extremes over the run (at the output times).
+#[derive(Debug, Clone, Serialize)]
+#[allow(non_snake_case)]
+pub struct WallExtremes {
+    /// Hottest wall temperature, °C.
+    pub hottest_C: Peak,
+    /// Fastest wall temperature change, K/s (signed).
+    pub fastest_change_K_s: Peak,
+    /// Largest temperature difference through the wall's thickness (hot metal face − cold
+    /// metal face, from the conduction resistance and the heat flows on both sides), K.
+    pub largest_difference_K: Peak,
 }
 
 /// Everything a transient run reports.
@@ -71,6 +145,10 @@ pub struct TransientReport {
     pub max_wall_C: f64,
     /// Fastest wall temperature change reached, K/s (signed).
     pub max_wall_rate_K_s: f64,
+    /// The wall's extremes with their times and positions.
+    pub wall: WallExtremes,
+    /// Every change of every input schedule, each with both outlets' response to it.
+    pub input_changes: Vec<InputChange>,
     /// Integrator statistics.
     pub stats: Stats,
     /// Standing caution.

@@ -130,9 +130,15 @@ impl Bdf {
         Ok(())
     }
 
+    /// The cell with the largest difference through the wall at the last right-hand side
+    /// (the accepted step's final Newton iterate) and that difference, K (signed).
+    pub(super) fn wall_difference(&self) -> (usize, f64) {
+        signed_largest(&self.work.across)
+    }
+
     /// Dense output at `t` within the last step: the state, its temperatures and the fastest
     /// wall rate (K/s, signed), from the polynomial through the stored points.
-    pub(super) fn dense(&self, model: &Model, t: f64) -> (DVector<f64>, Vec<Vector3<f64>>, f64) {
+    pub(super) fn dense(&self, model: &Model, t: f64) -> (DVector<f64>, Vec<Vector3<f64>>, (usize, f64)) {
         let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
         let (w, dw) = (lagrange_weights(&times, t), lagrange_derivative_weights(&times, t));
         let n = model.n;
@@ -144,14 +150,8 @@ impl Bdf {
                 *xi += pi * wj;
             }
         }
-        let mut max_rate = 0.0f64;
-        for i in 0..n {
-            let rate: f64 = self.hist.iter().zip(&dw).map(|(p, d)| p.2[2 * n + i] * d).sum();
-            if rate.abs() > max_rate.abs() {
-                max_rate = rate;
-            }
-        }
-        (y, x, max_rate)
+        let rates: Vec<f64> = (0..n).map(|i| self.hist.iter().zip(&dw).map(|(p, d)| p.2[2 * n + i] * d).sum()).collect();
+        (y, x, signed_largest(&rates))
     }
 
     /// Evaluate the Jacobian (if missing or old) and factorise the Newton matrix (if b·h has

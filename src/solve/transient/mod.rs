@@ -130,8 +130,18 @@ pub struct Sample {
     pub wall_energy_J: f64,
     /// Hottest wall cell, °C.
     pub max_wall_C: f64,
+    /// Where the wall is hottest, m (a network: the first direction).
+    pub max_wall_at_m: f64,
     /// Fastest wall temperature change of any cell, K/s (signed).
     pub max_wall_rate_K_s: f64,
+    /// Where the wall changes fastest, m.
+    pub max_wall_rate_at_m: f64,
+    /// Largest temperature difference through the wall's thickness (hot metal face − cold
+    /// metal face, signed), K: R'_wall/2 · (q'_hot→wall + q'_wall→cold). With the implicit
+    /// integrator on an axial line, the largest over the steps since the previous output.
+    pub max_wall_difference_K: f64,
+    /// Where that difference is largest, m.
+    pub max_wall_difference_at_m: f64,
     /// ∫ net enthalpy inflow of both streams dt since t = 0, J.
     pub net_inflow_J: f64,
     /// ∫ hot duty dt since t = 0, J.
@@ -291,14 +301,39 @@ fn check_second_law(snap: &Snapshot, dx: f64, bounds: (f64, f64)) -> Result<(), 
     }
 }
 
+/// The wall at one output time, for [`Sample::at`].
+pub(super) struct WallState<'a> {
+    /// Wall temperature of each cell, °C.
+    pub(super) wall_c: &'a [f64],
+    /// The fastest-changing cell and its rate, K/s (signed).
+    pub(super) rate: (usize, f64),
+    /// The cell with the largest through-thickness difference and that difference, K (signed).
+    pub(super) across: (usize, f64),
+    /// A cell's position, m.
+    pub(super) position: &'a dyn Fn(usize) -> f64,
+}
+
+/// The entry of largest magnitude (index, signed value); (0, 0) when empty.
+pub(super) fn signed_largest(v: &[f64]) -> (usize, f64) {
+    v.iter().enumerate().fold((0, 0.0f64), |a, (i, &x)| if x.abs() > a.1.abs() { (i, x) } else { a })
+}
+
+/// A cell's through-thickness wall difference, K: the heat into the wall from the hot side
+/// and out to the cold side, each through half the wall's conduction resistance.
+pub(super) fn across_wall_k(e: &Exchanger, d: &crate::model::CellDetail, dx_m: f64) -> f64 {
+    0.5 * e.wall.resistance_per_length() * (d.balance.hot_to_wall_w + d.balance.wall_to_cold_w) / dx_m
+}
+
 impl Sample {
     /// The sample at `t` for the inputs `e`: outlets (hot, cold), stored energies (fluid,
     /// wall), the wall temperatures, the fastest wall rate and the two integrals (net inflow,
     /// hot heat).
     #[allow(clippy::too_many_arguments)]
-    fn at(e: &Exchanger, t: f64, outlets: (f64, f64), fluid_energy_j: f64, wall_energy_j: f64, wall_c: &[f64], max_rate: f64, integrals: [f64; 2]) -> Self {
+    fn at(e: &Exchanger, t: f64, outlets: (f64, f64), fluid_energy_j: f64, wall_energy_j: f64, wall: &WallState, integrals: [f64; 2]) -> Self {
         let (hf, cf) = (&e.hot.fluid, &e.cold.fluid);
         let (hot_out, cold_out) = outlets;
+        let hottest = wall.wall_c.iter().enumerate().fold((0, f64::NEG_INFINITY), |a, (i, &v)| if v > a.1 { (i, v) } else { a });
+        let across = wall.across;
         Sample {
             time_s: t,
             hot_inlet_C: e.hot.inlet_c,
@@ -311,8 +346,12 @@ impl Sample {
             cold_duty_W: e.cold.mass_flow_kg_s * (cf.enthalpy(cold_out) - cf.enthalpy(e.cold.inlet_c)),
             fluid_energy_J: fluid_energy_j,
             wall_energy_J: wall_energy_j,
-            max_wall_C: wall_c.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-            max_wall_rate_K_s: max_rate,
+            max_wall_C: hottest.1,
+            max_wall_at_m: (wall.position)(hottest.0),
+            max_wall_rate_K_s: wall.rate.1,
+            max_wall_rate_at_m: (wall.position)(wall.rate.0),
+            max_wall_difference_K: across.1,
+            max_wall_difference_at_m: (wall.position)(across.0),
             net_inflow_J: integrals[0],
             hot_heat_J: integrals[1],
         }
@@ -510,16 +549,24 @@ pub fn simulate(ex: &Exchanger, inputs: &Inputs, settings: &TransientSettings, o
             let mut bdf = Bdf::new(&model, &y, settings);
             let eps = 1e-12 * t_end.max(1.0);
             let mut next = outputs.partition_point(|&o| o <= eps);
+            // The largest difference through the wall over the steps since the last output
+            // (from each step's own right-hand side: no extra evaluation).
+            let mut across = (0, 0.0f64);
             'run: for stop in hard_stops(inputs, settings) {
                 while bdf.t < stop - eps {
                     bdf.step(&model, stop, settings, &mut run.stats)?;
+                    let this_step = bdf.wall_difference();
+                    if this_step.1.abs() > across.1.abs() {
+                        across = this_step;
+                    }
                     while next < outputs.len() && outputs[next] <= bdf.t + eps {
                         let t = outputs[next];
                         // At a step's end the interpolant's weights are exactly (0, 0, 1).
                         let (yt, xt, rate) = bdf.dense(&model, t.min(bdf.t));
-                        if !record(&mut run, t, model.sample_from(t, &yt, &xt, rate), &model)? {
+                        if !record(&mut run, t, model.sample_from(t, &yt, &xt, rate, across), &model)? {
                             break 'run;
                         }
+                        across = this_step;
                         observer.progress(t, t_end);
                         next += 1;
                     }

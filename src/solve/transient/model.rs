@@ -24,6 +24,8 @@ pub(super) struct Model<'a> {
 pub(super) struct Work {
     temps: Vec<crate::model::CellTemps>,
     out: Vec<[f64; 2]>,
+    /// Each cell's temperature difference through the wall's thickness at the last call, K.
+    pub(super) across: Vec<f64>,
 }
 
 /// State layout: h_hot[0..n], h_cold[0..n], T_wall[0..n], net inflow, hot heat.
@@ -60,6 +62,7 @@ impl Model<'_> {
         // The inlet cells' inflow faces are the inlet temperatures themselves.
         let inlet = [hf.enthalpy(e.hot.inlet_c), cf.enthalpy(e.cold.inlet_c)];
         let cold_forward = e.arrangement != crate::model::Arrangement::Counterflow;
+        work.across.clear();
         for i in 0..n {
             let t = &work.temps[i];
             // The upstream cell's outflow is this cell's inflow (same value: reuse its enthalpy).
@@ -71,7 +74,9 @@ impl Model<'_> {
             let h_hot_in = from(i.checked_sub(1), 0, t.hot_in, hf);
             let cold_up = if cold_forward { i.checked_sub(1) } else { (i + 1 < n).then_some(i + 1) };
             let h_cold_in = from(cold_up, 1, t.cold_in, cf);
-            let res = e.cell_given(self.dx, [1.0, 1.0], t, [h_hot_in, work.out[i][0], h_cold_in, work.out[i][1]]).balance.steady_residual();
+            let d = e.cell_given(self.dx, [1.0, 1.0], t, [h_hot_in, work.out[i][0], h_cold_in, work.out[i][1]]);
+            work.across.push(across_wall_k(e, &d, self.dx));
+            let res = d.balance.steady_residual();
             r[i] = Vector3::new(res[0], -res[1], res[2]);
             unknown_h[i] = [
                 if x[i][0] == t.hot_out { work.out[i][0] } else { hf.enthalpy(x[i][0]) },
@@ -86,11 +91,16 @@ impl Model<'_> {
     }
 
     pub(super) fn derivative(&self, t: f64, y: &DVector<f64>, dy: &mut DVector<f64>) {
+        self.derivative_with(t, y, dy, &mut Work::default());
+    }
+
+    /// [`Model::derivative`] leaving the per-cell values of the call in `work`.
+    fn derivative_with(&self, t: f64, y: &DVector<f64>, dy: &mut DVector<f64>, work: &mut Work) {
         let n = self.n;
         let x = self.temperatures(y);
         let mut r = vec![Vector3::zeros(); n];
         let e = self.inputs.apply(self.ex, t);
-        let (net, hot) = self.rates(&e, &self.grid(&e), &x, &mut r, &mut Work::default(), &mut vec![[0.0; 2]; n]);
+        let (net, hot) = self.rates(&e, &self.grid(&e), &x, &mut r, work, &mut vec![[0.0; 2]; n]);
         for i in 0..n {
             dy[i] = r[i][0] / self.mass[0][i];
             dy[n + i] = r[i][1] / self.mass[1][i];
@@ -105,14 +115,16 @@ impl Model<'_> {
     pub(super) fn sample(&self, t: f64, y: &DVector<f64>) -> (Sample, Snapshot) {
         let n = self.n;
         let mut dy = DVector::zeros(self.len());
-        self.derivative(t, y, &mut dy);
-        let max_rate = (0..n).map(|i| dy[2 * n + i]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a });
-        self.sample_from(t, y, &self.temperatures(y), max_rate)
+        let mut work = Work::default();
+        self.derivative_with(t, y, &mut dy, &mut work);
+        let rates: Vec<f64> = (0..n).map(|i| dy[2 * n + i]).collect();
+        self.sample_from(t, y, &self.temperatures(y), signed_largest(&rates), signed_largest(&work.across))
     }
 
-    /// The output at `t` from the state `y`, its temperatures `x` and the fastest wall rate
-    /// (K/s, signed): what dense output gives without a right-hand side.
-    pub(super) fn sample_from(&self, t: f64, y: &DVector<f64>, x: &[Vector3<f64>], max_rate: f64) -> (Sample, Snapshot) {
+    /// The output at `t` from the state `y`, its temperatures `x`, the fastest wall rate
+    /// (cell, K/s signed) and the largest difference through the wall (cell, K signed): what
+    /// dense output gives without a right-hand side.
+    pub(super) fn sample_from(&self, t: f64, y: &DVector<f64>, x: &[Vector3<f64>], max_rate: (usize, f64), across: (usize, f64)) -> (Sample, Snapshot) {
         let n = self.n;
         let e = self.inputs.apply(self.ex, t);
         let g = self.grid(&e);
@@ -121,7 +133,9 @@ impl Model<'_> {
         let fluid_energy: f64 = (0..n).map(|i| self.mass[0][i] * y[i] + self.mass[1][i] * y[n + i]).sum();
         let wall: Vec<f64> = (0..n).map(|i| y[2 * n + i]).collect();
         let wall_energy = wall.iter().map(|t| self.wall_capacity * t).sum();
-        let sample = Sample::at(&e, t, outlets, fluid_energy, wall_energy, &wall, max_rate, [y[3 * n], y[3 * n + 1]]);
+        let position = |i: usize| (i as f64 + 0.5) * self.dx;
+        let state = WallState { wall_c: &wall, rate: max_rate, across, position: &position };
+        let sample = Sample::at(&e, t, outlets, fluid_energy, wall_energy, &state, [y[3 * n], y[3 * n + 1]]);
         (sample, Snapshot { time_s: t, hot_faces_c: hot_faces, cold_faces_c: cold_faces, wall_c: wall })
     }
 

@@ -64,7 +64,7 @@ impl NetModel<'_> {
 
     /// The output at `t`; `max_rate` is the fastest wall rate (K/s, signed) where the
     /// integrator's interpolant gives it, else one residual evaluation does.
-    fn sample(&self, t: f64, z: &[f64], integrals: [f64; 2], max_rate: Option<f64>) -> (Sample, Snapshot) {
+    fn sample(&self, t: f64, z: &[f64], integrals: [f64; 2], max_rate: Option<(usize, f64)>) -> (Sample, Snapshot) {
         let e = self.inputs.apply(self.ex, t);
         let sys = self.system(&e);
         let nn = self.net.nodes.len();
@@ -72,14 +72,23 @@ impl NetModel<'_> {
         let mut stored = Vec::new();
         self.stored(z, &mut stored);
         let walls = &z[nn..];
-        let max_rate = max_rate.unwrap_or_else(|| {
+        let rate = max_rate.unwrap_or_else(|| {
             let mut r = vec![0.0; z.len()];
             sys.residuals(z, &mut r);
-            (0..walls.len()).map(|k| r[nn + k] / self.wall_cap[k]).fold(0.0f64, |a, v| if v.abs() > a.abs() { v } else { a })
+            super::signed_largest(&(0..walls.len()).map(|k| r[nn + k] / self.wall_cap[k]).collect::<Vec<_>>())
         });
-        let sample = Sample::at(&e, t, outlets, stored[..nn].iter().sum(), stored[nn..].iter().sum(), walls, max_rate, integrals);
         let (nodes, _) = z.split_at(nn);
         let cells: Vec<_> = (0..self.net.cells.len()).map(|k| temps(self.net, e.scheme, sys.inlet, nodes, walls, k)).collect();
+        let across_k: Vec<f64> = cells
+            .iter()
+            .zip(&self.net.cells)
+            .map(|(t, c)| {
+                let dx = self.ex.length_m * c.area_share;
+                super::across_wall_k(&e, &e.cell_shared(dx, c.flow_share, t), dx)
+            })
+            .collect();
+        let wall = super::WallState { wall_c: walls, rate, across: super::signed_largest(&across_k), position: &|k| self.position_m(k) };
+        let sample = Sample::at(&e, t, outlets, stored[..nn].iter().sum(), stored[nn..].iter().sum(), &wall, integrals);
         let snap = Snapshot {
             time_s: t,
             hot_faces_c: cells.iter().map(|c| c.hot_bulk).collect(),
@@ -170,7 +179,7 @@ impl NetBdf {
 
     /// Dense output at `t` within the last step (the quadratic through the last three
     /// points): temperatures, integrals and the fastest wall rate, K/s.
-    fn dense(&self, nn: usize, t: f64) -> (Vec<f64>, [f64; 2], f64) {
+    fn dense(&self, nn: usize, t: f64) -> (Vec<f64>, [f64; 2], (usize, f64)) {
         let times: Vec<f64> = self.hist.iter().map(|p| p.0).collect();
         let (w, dw) = (super::bdf::lagrange_weights(&times, t), super::bdf::lagrange_derivative_weights(&times, t));
         let mut z = vec![0.0; self.hist[0].1.len()];
@@ -182,14 +191,8 @@ impl NetBdf {
             ints[0] += wj * i[0];
             ints[1] += wj * i[1];
         }
-        let mut max_rate = 0.0f64;
-        for k in nn..z.len() {
-            let rate: f64 = self.hist.iter().zip(&dw).map(|(p, d)| p.1[k] * d).sum();
-            if rate.abs() > max_rate.abs() {
-                max_rate = rate;
-            }
-        }
-        (z, ints, max_rate)
+        let rates: Vec<f64> = (nn..z.len()).map(|k| self.hist.iter().zip(&dw).map(|(p, d)| p.1[k] * d).sum()).collect();
+        (z, ints, super::signed_largest(&rates))
     }
 
     /// One step of length `h`: Ok(next step) if accepted, Err(next step) if rejected.
@@ -387,7 +390,7 @@ pub fn simulate_network(
         cells,
         stopped: None,
     };
-    let record = |run: &mut TransientRun, t: f64, z: &[f64], integrals: [f64; 2], rate: Option<f64>| -> Result<bool, TransientError> {
+    let record = |run: &mut TransientRun, t: f64, z: &[f64], integrals: [f64; 2], rate: Option<(usize, f64)>| -> Result<bool, TransientError> {
         match model.check(t, z, bounds) {
             Err(TransientError::Solve(e)) => {
                 run.stop_on(t, e)?;

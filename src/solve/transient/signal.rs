@@ -76,6 +76,16 @@ impl Signal {
         }
     }
 
+    /// Its changes in time order: (start, end, from, to), a step having start = end.
+    pub fn changes(&self) -> Vec<(f64, f64, f64, f64)> {
+        match self {
+            Signal::Constant(_) => vec![],
+            Signal::Step { time_s, before, after } => vec![(*time_s, *time_s, *before, *after)],
+            Signal::Ramp { start_s, end_s, from, to } => vec![(*start_s, *end_s, *from, *to)],
+            Signal::Table(p) => p.windows(2).filter(|w| w[0].1 != w[1].1).map(|w| (w[0].0, w[1].0, w[0].1, w[1].1)).collect(),
+        }
+    }
+
     /// Times where the signal or its slope jumps (integration restarts there).
     pub fn breakpoints(&self) -> Vec<f64> {
         match self {
