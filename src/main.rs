@@ -354,8 +354,12 @@ fn simulate(path: &Path, out: Option<PathBuf>, quiet: bool) -> ExitCode {
         b.finish_and_clear();
     }
     let report = match result {
-        Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r }
-            .with_input(study::echo::transient(&case.source, &exchanger, &settings, &inputs)),
+        Ok(r) => hxgrid::scenario::TransientReport { storage: Some(spec.storage(&exchanger, &case)), ..r }.with_input(study::echo::transient(
+            &case.source,
+            &exchanger,
+            &settings,
+            &inputs,
+        )),
         Err(e) => return solver_failed(&e, case::advice::transient(&e)),
     };
     let code = finish(hxgrid::output::write_transient(&report, &dir), quiet, || print_transient(&report));

@@ -208,6 +208,7 @@ pub fn run(
         version: crate::results::VERSION,
         input_sha256: None,
         input: None,
+        position_label: crate::study::position_label(ex),
         integrator: match settings.integrator {
             Integrator::Explicit => "explicit (Dormand–Prince 5(4))",
             Integrator::Implicit => {

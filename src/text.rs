@@ -97,6 +97,24 @@ pub fn safe_message(s: &str, line_max: usize, lines_max: usize) -> String {
     out
 }
 
+/// `v` to `digits` significant digits, without trailing zeros.
+pub fn sig(v: f64, digits: i32) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return num(v);
+    }
+    let mag = v.abs().log10().floor() as i32;
+    if !(-4..7).contains(&mag) {
+        return format!("{v:.3e}");
+    }
+    let decimals = (digits - 1 - mag).max(0) as usize;
+    let s = format!("{v:.decimals$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

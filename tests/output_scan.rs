@@ -25,7 +25,7 @@ fn scan_csv(path: &Path) {
 }
 
 /// Keys whose value may be null ("not computed" or "does not apply"), by name.
-const MAY_BE_NULL: [&str; 16] = [
+const MAY_BE_NULL: [&str; 20] = [
     "stop",
     "shell_with",
     "shell_outer_face",
@@ -42,6 +42,13 @@ const MAY_BE_NULL: [&str; 16] = [
     "settling_63_s",
     "settling_95_s",
     "settling_99_s",
+    // Set only where the change is worth a percentage (see README, transient.json).
+    "overshoot_percent",
+    // No flow geometry (a fixed film coefficient): no velocity or Reynolds number.
+    "velocity_m_s",
+    "reynolds",
+    // An exchanger built in code has no case file.
+    "input_sha256",
 ];
 
 fn scan_json(v: &serde_json::Value, path: &str, file: &Path) {

@@ -131,8 +131,8 @@ fn a_step_at_zero_is_not_swallowed() {
             .unwrap();
     assert!((r.samples[0].hot_outlet_C - before.hot_outlet_c()).abs() < 1e-6, "{} vs {}", r.samples[0].hot_outlet_C, before.hot_outlet_c());
     assert_eq!(r.reference_time_s, 0.0);
-    assert!(r.hot_outlet.change_K < -1.0, "{:?}", r.hot_outlet);
-    assert!(r.cold_outlet.change_K < -1.0, "{:?}", r.cold_outlet);
+    assert!(r.hot_outlet.response.change_K < -1.0, "{:?}", r.hot_outlet);
+    assert!(r.cold_outlet.response.change_K < -1.0, "{:?}", r.cold_outlet);
     assert!(r.hot_outlet.difference_from_steady_K.unwrap().abs() < 0.01, "{:?}", r.hot_outlet);
 }
 

@@ -45,7 +45,11 @@ pub fn transient(r: &TransientReport) -> String {
     if !r.input_changes.is_empty() {
         let _ = writeln!(out, "\nresponse to each input change (from its start to the next change):");
         for c in &r.input_changes {
-            let when = if c.kind == "step" { format!("at {} s", crate::text::num(c.start_s)) } else { format!("{}–{} s", crate::text::num(c.start_s), crate::text::num(c.end_s)) };
+            let when = if c.kind == "step" {
+                format!("at {} s", crate::text::num(c.start_s))
+            } else {
+                format!("{}–{} s", crate::text::num(c.start_s), crate::text::num(c.end_s))
+            };
             let _ = writeln!(out, "  {} {} {} → {} {} ({}):", c.input, c.kind, crate::text::num(c.from), crate::text::num(c.to), c.unit, when);
             for (name, v) in [("hot outlet", &c.hot_outlet), ("cold outlet", &c.cold_outlet)] {
                 let _ = writeln!(

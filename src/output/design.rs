@@ -154,7 +154,7 @@ fn failed(lines: &[String], inputs: usize) -> usize {
 }
 
 /// Files of a sweep folder.
-pub const SWEEP_FILES: [&str; 3] = ["sweep.csv", "sweep.json", "sweep.svg"];
+pub const SWEEP_FILES: [&str; 4] = ["sweep.csv", "sweep.json", "sweep.svg", "report.html"];
 /// Files of a shard folder (no plot of a slice).
 pub const SHARD_FILES: [&str; 2] = ["sweep.csv", "sweep.json"];
 
@@ -176,6 +176,7 @@ pub fn write_sweep(dir: &Path, manifest: &SweepManifest, header: &str, lines: &[
         std::fs::write(&p, serde_json::to_string_pretty(manifest).expect("a manifest serialises") + "\n").map_err(io(&p))?;
         if manifest.shard.is_none() {
             sweep_plot(&staging.join("sweep.svg"), manifest, &csv)?;
+            super::html::sweep(manifest, &csv, &staging.join("report.html"))?;
         }
         Ok(())
     })?;

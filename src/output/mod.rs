@@ -14,6 +14,7 @@ mod csv;
 pub mod design;
 pub(crate) mod finite;
 pub mod folder;
+pub(crate) mod html;
 pub(crate) mod svg;
 
 use crate::results::SteadyReport;
@@ -164,7 +165,7 @@ impl<R> FileWriter<R> for Writer<R> {
 /// The files of a steady run, in the order written (see [`FileWriter::applies`] for which
 /// a report has).
 pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
-    static FILES: [Writer<SteadyReport>; 6] = [
+    static FILES: [Writer<SteadyReport>; 9] = [
         Writer {
             name: "summary.json",
             write: |r, path, options| {
@@ -183,13 +184,17 @@ pub fn steady_files() -> Vec<&'static dyn FileWriter<SteadyReport>> {
         Writer { name: "heat_flux.svg", write: |r, path, _| svg::heat_flux(r, path), applies: Applies::Always },
         Writer { name: "pressure.svg", write: |r, path, _| svg::pressure(r, path), applies: Applies::Axial },
         Writer { name: "outlets.svg", write: |r, path, _| svg::outlets(r, path), applies: Applies::Network },
+        Writer { name: "tq_diagram.svg", write: |r, path, _| svg::temperature_duty(r, path), applies: Applies::Axial },
+        Writer { name: "film_coefficients.svg", write: |r, path, _| svg::flow(r, path), applies: Applies::Axial },
+        // Last: it inlines the plots written before it.
+        Writer { name: "report.html", write: |r, path, _| html::steady(r, path), applies: Applies::Always },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<SteadyReport>).collect()
 }
 
 /// The files of a transient run, in the order written.
 pub fn transient_files() -> Vec<&'static dyn FileWriter<TransientReport>> {
-    static FILES: [Writer<TransientReport>; 5] = [
+    static FILES: [Writer<TransientReport>; 6] = [
         Writer {
             name: "transient.json",
             write: |r, path, _| write_text(path, &(serde_json::to_string_pretty(r).expect("report serialises") + "\n")),
@@ -199,6 +204,8 @@ pub fn transient_files() -> Vec<&'static dyn FileWriter<TransientReport>> {
         Writer { name: "snapshots.csv", write: |r, path, _| write_with(path, |w| csv::snapshots(r, w)), applies: Applies::Always },
         Writer { name: "response.svg", write: |r, path, _| svg::response(r, path), applies: Applies::Always },
         Writer { name: "snapshots.svg", write: |r, path, _| svg::snapshots(r, path), applies: Applies::Always },
+        // Last: it inlines the plots written before it.
+        Writer { name: "report.html", write: |r, path, _| html::transient(r, path), applies: Applies::Always },
     ];
     FILES.iter().map(|w| w as &dyn FileWriter<TransientReport>).collect()
 }

@@ -525,6 +525,17 @@ pub struct SteadyReport {
     /// Each stream's Reynolds bands inside its film correlation's range, for plots.
     #[serde(skip)]
     pub reynolds_bands: [Vec<(f64, f64)>; 2],
+    /// Heat given up by the hot stream from its inlet to each face, W (an axial line; the
+    /// T–Q diagram's abscissa).
+    #[serde(skip)]
+    pub duty_faces_w: Vec<f64>,
+    /// Each stream's saturation pressure at its face temperatures, Pa (empty for a fluid
+    /// without one, or where no pressure profile was computed).
+    #[serde(skip)]
+    pub saturation_faces_pa: [Vec<f64>; 2],
+    /// What the position along the exchanger is, for plot axes.
+    #[serde(skip)]
+    pub position_label: &'static str,
     /// The case as given and as interpreted (None for an exchanger built in code).
     #[serde(skip)]
     pub input: Option<std::sync::Arc<InputEcho>>,

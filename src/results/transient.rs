@@ -168,6 +168,9 @@ pub struct TransientReport {
     pub network: Option<crate::model::Network>,
     /// The arrangement, as the case file names it.
     pub arrangement: &'static str,
+    /// What the position along the exchanger is, for plot axes.
+    #[serde(skip)]
+    pub position_label: &'static str,
     /// The case as given and as interpreted (report only).
     #[serde(skip)]
     pub input: Option<std::sync::Arc<crate::results::InputEcho>>,

@@ -68,7 +68,10 @@ fn stream(rows: &mut Vec<(String, String)>, name: &str, s: &Stream, length_m: f6
     rows.push(row(&format!("{name} inlet pressure"), format!("{} kPa (absolute)", num(s.inlet_pressure_pa * 1e-3))));
     rows.push(row(&format!("{name} fouling resistance"), format!("{} m²·K/W", num(s.fouling_m2k_w))));
     rows.push(row(&format!("{name} film model"), format!("{}: {}", s.film.name(), s.film.validity())));
-    rows.push(row(&format!("{name} heat-transfer area"), format!("{} m² ({} m²/m)", num(s.channel.area_per_length_m * length_m), num(s.channel.area_per_length_m))));
+    rows.push(row(
+        &format!("{name} heat-transfer area"),
+        format!("{} m² ({} m²/m)", num(s.channel.area_per_length_m * length_m), num(s.channel.area_per_length_m)),
+    ));
     if let Some(a) = s.channel.flow_area_m2 {
         rows.push(row(&format!("{name} free-flow area"), format!("{} m²", num(a))));
     }

@@ -452,6 +452,23 @@ pub(crate) fn assemble(
         None => (None, None),
     };
     let [hot_faces_c, cold_faces_c] = sol.faces_c;
+    let duty_faces_w: Vec<f64> = if fields.is_some() {
+        Vec::new()
+    } else {
+        std::iter::once(0.0)
+            .chain(sol.details.iter().scan(0.0, |q, d| {
+                *q += d.0.balance.hot_release_w;
+                Some(*q)
+            }))
+            .collect()
+    };
+    let saturation = |s: &crate::model::Stream, faces_c: &[f64], faces_pa: &[f64]| -> Vec<f64> {
+        if faces_pa.is_empty() {
+            return Vec::new();
+        }
+        faces_c.iter().map_while(|&t| s.fluid.saturation_pressure_pa(t)).collect()
+    };
+    let saturation_faces_pa = [saturation(&ex.hot, &hot_faces_c, &hot_faces_pa), saturation(&ex.cold, &cold_faces_c, &cold_faces_pa)];
     let minimum_approach = match &fields {
         // A network: hot and cold in the same cell.
         Some(_) => profile
@@ -460,13 +477,13 @@ pub(crate) fn assemble(
             .min_by(|a, b| a.0.total_cmp(&b.0))
             .map(|(d, x, cell)| Approach { minimum_K: d, at_m: x, cell }),
         // An axial line: the streams face to face, the terminal differences included.
-        None => hot_faces_c
-            .iter()
-            .zip(&cold_faces_c)
-            .zip(&sol.faces_m)
-            .map(|((h, c), x)| (h - c, *x))
-            .min_by(|a, b| a.0.total_cmp(&b.0))
-            .map(|(d, x)| Approach { minimum_K: d, at_m: x, cell: None }),
+        None => {
+            hot_faces_c.iter().zip(&cold_faces_c).zip(&sol.faces_m).map(|((h, c), x)| (h - c, *x)).min_by(|a, b| a.0.total_cmp(&b.0)).map(|(d, x)| Approach {
+                minimum_K: d,
+                at_m: x,
+                cell: None,
+            })
+        }
     }
     .unwrap_or(Approach { minimum_K: th_in - tc_in, at_m: 0.0, cell: None });
     let conditions = |hot: bool| {
@@ -545,7 +562,20 @@ pub(crate) fn assemble(
         cold_faces_pa,
         fields,
         reynolds_bands: [ex.hot.film.reynolds_bands(), ex.cold.film.reynolds_bands()],
+        duty_faces_w,
+        saturation_faces_pa,
+        position_label: position_label(ex),
         input: None,
+    }
+}
+
+/// What the position along an exchanger is, for plot axes: the depth of a tube bank, else
+/// the distance along the hot stream's flow.
+pub fn position_label(ex: &Exchanger) -> &'static str {
+    if [&ex.hot, &ex.cold].iter().any(|s| s.film.name() == "zukauskas") {
+        "depth of the bank, x (m)"
+    } else {
+        "position along the hot stream's flow, x (m)"
     }
 }
 
@@ -560,7 +590,12 @@ fn where_outside(profile: &[ProfileRow], hot: bool, film: &dyn crate::transfer::
     let pr: Vec<f64> = out.iter().map(|r| if hot { r.pr_hot } else { r.pr_cold }).collect();
     let range = |v: &[f64]| {
         let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
-        if hi - lo > 1e-9 * hi.abs() { format!("{}–{}", num(lo), num(hi)) } else { num(lo) }
+        let sig = |v: f64| crate::text::sig(v, 4);
+        if hi - lo > 1e-9 * hi.abs() {
+            format!("{}–{}", sig(lo), sig(hi))
+        } else {
+            sig(lo)
+        }
     };
     let mut what = Vec::new();
     if !re.is_empty() {
@@ -569,7 +604,15 @@ fn where_outside(profile: &[ProfileRow], hot: bool, film: &dyn crate::transfer::
         // above 10⁴) where the correlation is one for ducts.
         if matches!(film.name(), "gnielinski" | "dittus_boelter" | "sieder_tate" | "pitla") {
             let (lo, hi) = re.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
-            let regime = |re: f64| if re <= 2300.0 { "laminar" } else if re < 1e4 { "transitional" } else { "turbulent" };
+            let regime = |re: f64| {
+                if re <= 2300.0 {
+                    "laminar"
+                } else if re < 1e4 {
+                    "transitional"
+                } else {
+                    "turbulent"
+                }
+            };
             let (a, b) = (regime(lo), regime(hi));
             what.push(if a == b { a.to_string() } else { format!("{a} to {b}") });
         }

@@ -59,7 +59,14 @@ impl FilmCorrelation for CompactSurface {
         let h = if re < re0 { j0 * re0 * i.props.viscosity / ch.hydraulic_diameter_m.unwrap_or(1.0) * colburn } else { j * g * colburn };
         let eta_f = self.fin.map(|f| f.efficiency(h));
         let nu = h * ch.hydraulic_diameter_m.unwrap_or(1.0) / i.props.conductivity;
-        FilmResult { h, reynolds: Some(re), nusselt: Some(nu), surface_efficiency: surface_efficiency(self.fin_area_fraction, eta_f.unwrap_or(1.0)), fin_efficiency: eta_f, in_range: ok }
+        FilmResult {
+            h,
+            reynolds: Some(re),
+            nusselt: Some(nu),
+            surface_efficiency: surface_efficiency(self.fin_area_fraction, eta_f.unwrap_or(1.0)),
+            fin_efficiency: eta_f,
+            in_range: ok,
+        }
     }
     fn reynolds_bands(&self) -> Vec<(f64, f64)> {
         vec![(self.data[0].0, self.data[self.data.len() - 1].0)]
