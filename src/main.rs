@@ -144,10 +144,32 @@ fn props(fluid: Option<String>, table: Option<PathBuf>, pressure_bar: Option<f64
             return bad(format!("{flag} {t} °C is outside {}'s valid range {:.2} … {:.2} °C ({})", f.name(), r.min_c, r.max_c, r.reason, t = num(t)));
         }
     }
-    let step = step.unwrap_or(((hi - lo) / 20.0).max(1e-6));
+    // Default step: a round 1, 2 or 5 × 10ⁿ K giving about 20 rows; default ends: the valid
+    // range's ends rounded inwards to that step, so every row is at a round temperature.
+    let step = step.unwrap_or_else(|| {
+        let raw = ((hi - lo) / 20.0).max(1e-6);
+        let m = 10f64.powf(raw.log10().floor());
+        [1.0, 2.0, 5.0, 10.0].iter().map(|k| k * m).find(|s| *s >= raw * (1.0 - 1e-9)).unwrap_or(raw)
+    });
     if !(step.is_finite() && step > 0.0) {
         return bad(format!("--step {step} must be a positive number of kelvin", step = num(step)));
     }
+    let round = |t: f64, up: bool| {
+        let k = t / step;
+        // Clean up round-off (0.1 × 3 = 0.30000000000000004) before rounding to the step.
+        let k = if (k - k.round()).abs() < 1e-9 {
+            k.round()
+        } else if up {
+            k.ceil()
+        } else {
+            k.floor()
+        };
+        k * step
+    };
+    let (lo, hi) = match (from.is_none().then(|| round(lo, true)), to.is_none().then(|| round(hi, false))) {
+        (a, b) if a.unwrap_or(lo) <= b.unwrap_or(hi) => (a.unwrap_or(lo), b.unwrap_or(hi)),
+        _ => (lo, hi),
+    };
     outln!("{} at {:.5} bar (valid {:.2} … {:.2} °C)", f.name(), p_pa * 1e-5, r.min_c, r.max_c);
     if let FluidChoice::Table(t) = &choice {
         outln!("source: {}", t.source());

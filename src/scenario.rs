@@ -69,7 +69,7 @@ pub fn response(times: &[f64], values: &[f64], t0: f64) -> Response {
 /// Every change of every input in `inputs` that falls in the run (start before `end`), with
 /// both outlets' responses from its start to the next change of any input or the end.
 fn input_changes(inputs: &Inputs, samples: &[crate::solve::transient::Sample], end: f64) -> Vec<InputChange> {
-    let all: Vec<(&'static str, &'static str, (f64, f64, f64, f64))> = [
+    let all: Vec<(&'static str, &'static str, crate::solve::transient::Change)> = [
         ("hot inlet temperature", "°C", &inputs.hot_inlet_c),
         ("hot mass flow", "kg/s", &inputs.hot_flow_kg_s),
         ("cold inlet temperature", "°C", &inputs.cold_inlet_c),

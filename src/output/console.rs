@@ -9,6 +9,7 @@ pub fn transient(r: &TransientReport) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "\n{} — transient, {} s simulated, {} cells, {} scheme, {}", r.case, r.duration_s, r.cells, r.scheme, r.integrator);
     let _ = writeln!(out, "  start: {}; response measured from t = {} s", r.initial_state, r.reference_time_s);
+    let _ = writeln!(out, "  hxgrid {}{}", r.version, r.input_sha256.as_ref().map(|h| format!("; input SHA-256 {h}")).unwrap_or_default());
     if let Some(stop) = &r.stop {
         let _ = writeln!(
             out,
@@ -114,6 +115,7 @@ pub fn steady(r: &SteadyReport) -> String {
         }
     }
     let _ = writeln!(out, "  hot:  {}\n  cold: {}", r.hot_fluid, r.cold_fluid);
+    let _ = writeln!(out, "  {} scheme; hxgrid {}{}", r.scheme, r.version, r.input_sha256.as_ref().map(|h| format!("; input SHA-256 {h}")).unwrap_or_default());
     let _ = writeln!(out, "\n{:<22}{:>16}{:>16}{:>12}", "", "grid", "lumped ε–NTU", "difference");
     use crate::text::fixed as f;
     let _ = writeln!(out, "{:<22}{:>16}{:>16}{:>11}%", "duty (W)", f(r.duty_W, 1), f(l.duty_w, 1), f(r.grid_vs_lumped.duty_difference_percent, 2));
@@ -201,6 +203,31 @@ pub fn steady(r: &SteadyReport) -> String {
             );
         }
     }
+    let _ = writeln!(out, "\nlocal conditions (smallest … largest, with where):");
+    let sig = |v: f64| crate::text::sig(v, 4);
+    let range = |e: &crate::results::Extremes, unit: &str| {
+        let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+        format!("{}{u} at {} m … {}{u} at {} m", sig(e.min), sig(e.min_at_m), sig(e.max), sig(e.max_at_m))
+    };
+    for (name, c) in [("hot", &r.hot_conditions), ("cold", &r.cold_conditions)] {
+        let _ = writeln!(out, "  {name:<5} area {} m²", sig(c.area_m2));
+        if let Some(v) = &c.velocity_m_s {
+            let _ = writeln!(out, "        velocity {}", range(v, "m/s"));
+        }
+        if let Some(v) = &c.reynolds {
+            let _ = writeln!(out, "        Re {}", range(v, ""));
+        }
+        let _ = writeln!(out, "        h {}", range(&c.h_W_m2K, "W/(m²·K)"));
+        let _ = writeln!(out, "        wetted surface {}", range(&c.surface_C, "°C"));
+        if let Some(v) = &c.fin_efficiency {
+            let _ = writeln!(out, "        fin efficiency {}", range(v, ""));
+        }
+        if let Some(v) = &c.surface_efficiency {
+            let _ = writeln!(out, "        overall surface efficiency {}", range(v, ""));
+        }
+    }
+    let a = &r.minimum_approach;
+    let _ = writeln!(out, "  minimum approach {} K at {} m", sig(a.minimum_K), sig(a.at_m));
     let _ = writeln!(out, "\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
     if let Some(g) = &r.grid_error_estimate {
         let _ = writeln!(

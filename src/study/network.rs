@@ -63,6 +63,9 @@ pub(super) fn solved(ex: &Exchanger, layout: &Layout, sol: &NetworkSolution) -> 
     let field = |value: &dyn Fn(usize) -> f64| Field::of_network(net, &(0..net.cells.len()).map(value).collect::<Vec<f64>>());
     let (x_label, y_label) = match layout {
         Layout::Crossflow(_) => ("along the hot flow (fraction)", "along the cold flow (fraction)"),
+        Layout::CrossCounterflow(_) if super::position_label(ex).starts_with("depth of the bank") => {
+            ("along the tubes, across the face (fraction)", "depth of the bank, rows (fraction)")
+        }
         Layout::CrossCounterflow(c) => (
             "along each pass (fraction)",
             if c.passing == Side::Hot { "depth along the cold flow, passes (fraction)" } else { "depth along the hot flow, passes (fraction)" },

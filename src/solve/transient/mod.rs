@@ -34,7 +34,7 @@ use explicit::*;
 use model::*;
 use nalgebra::{DVector, Vector3};
 pub use network::{simulate_network, NetworkRun};
-pub use signal::{Inputs, Signal};
+pub use signal::{Change, Inputs, Signal};
 
 /// Where the run starts.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -31,6 +31,9 @@ pub enum Signal {
     Table(Vec<(f64, f64)>),
 }
 
+/// One change of a schedule: (start, end, from, to), times in s.
+pub type Change = (f64, f64, f64, f64);
+
 impl Signal {
     /// Value at time `t`.
     pub fn at(&self, t: f64) -> f64 {
@@ -76,8 +79,8 @@ impl Signal {
         }
     }
 
-    /// Its changes in time order: (start, end, from, to), a step having start = end.
-    pub fn changes(&self) -> Vec<(f64, f64, f64, f64)> {
+    /// Its changes in time order, a step having start = end.
+    pub fn changes(&self) -> Vec<Change> {
         match self {
             Signal::Constant(_) => vec![],
             Signal::Step { time_s, before, after } => vec![(*time_s, *time_s, *before, *after)],
