@@ -300,3 +300,55 @@ fn props_rows_default_to_round_temperatures() {
         }
     }
 }
+
+/// Every key of every object in a summary, recursively.
+fn keys(v: &serde_json::Value, out: &mut std::collections::BTreeSet<String>) {
+    match v {
+        serde_json::Value::Object(m) => {
+            for (k, x) in m {
+                out.insert(k.clone());
+                keys(x, out);
+            }
+        }
+        serde_json::Value::Array(a) => a.iter().for_each(|x| keys(x, out)),
+        _ => {}
+    }
+}
+
+#[test]
+fn every_summary_key_the_demos_write_is_documented_in_the_readme() {
+    let dir = common::Scratch::new("report-keys");
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    let case = |name: &str| root().join("cases").join(name).to_string_lossy().into_owned();
+    let transient = std::fs::read_to_string(root().join("cases/water-cooler-startup.toml")).unwrap().replace("cells = 200", "cells = 40");
+    std::fs::write(dir.join("t.toml"), transient).unwrap();
+    let runs: [(&[&str], &str); 6] = [
+        (&["run", &case("water-cooler.toml"), "--out", "a", "--grid-study", "3"], "a/summary.json"),
+        (&["run", &case("shell-and-tube-water-cooler.toml"), "--out", "b"], "b/summary.json"),
+        (&["run", &case("finned-air-cooler.toml"), "--out", "c"], "c/summary.json"),
+        (&["run", &case("tube-bank-air-heater.toml"), "--out", "d"], "d/summary.json"),
+        (&["size", &case("water-cooler-design.toml"), "--out", "e"], "e/summary.json"),
+        (&["simulate", "t.toml", "--out", "f"], "f/transient.json"),
+    ];
+    let mut all = std::collections::BTreeSet::new();
+    for (args, file) in runs {
+        let o = run(&[args, &["--quiet"]].concat(), &dir);
+        assert!(o.status.success(), "{args:?}: {}", text(&o));
+        keys(&json(&dir.join(file)), &mut all);
+    }
+    let missing: Vec<&String> = all.iter().filter(|k| !readme.contains(&format!("`{k}`"))).collect();
+    assert!(missing.is_empty(), "summary keys not documented in README (as `key`): {missing:?}");
+}
+
+#[test]
+fn a_sweep_writes_its_report_too() {
+    let dir = common::Scratch::new("report-sweep");
+    let case = root().join("cases/water-cooler-design.toml");
+    let o = run(&["sweep", case.to_str().unwrap(), "--out", "sw", "--quiet"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    let doc = check_report(&dir.join("sw"));
+    // Every point of sweep.csv is a row of the report's table.
+    let points = std::fs::read_to_string(dir.join("sw/sweep.csv")).unwrap().lines().count() - 1;
+    let last = doc.select(&sel("table")).next_back().unwrap();
+    assert_eq!(last.select(&sel("tr")).count(), points + 1);
+}

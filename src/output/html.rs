@@ -29,7 +29,7 @@ pub(crate) fn esc(s: &str) -> String {
 const STYLE: &str = "body{font-family:sans-serif;max-width:1000px;margin:1.5em auto;padding:0 1em;color:#222;line-height:1.4}\
 h1{font-size:1.6em;margin-bottom:0.2em}h2{font-size:1.25em;border-bottom:1px solid #ccc;margin-top:1.6em}\
 table{border-collapse:collapse;margin:0.6em 0}td,th{border:1px solid #ccc;padding:3px 8px;text-align:left;vertical-align:top}\
-th{background:#f2f2f2}td.n{text-align:right;font-variant-numeric:tabular-nums}\
+th{background:#f2f2f2}td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}\
 .caution{border:2px solid #b35900;background:#fff4e5;padding:0.6em 1em;margin:1em 0}\
 .warn{background:#fffbe6;border-left:4px solid #d4a000;padding:0.3em 0.8em;margin:0.3em 0}\
 figure{margin:1em 0}figcaption{font-size:0.9em;color:#555}svg{max-width:100%;height:auto}\
@@ -37,10 +37,15 @@ pre{background:#f7f7f7;border:1px solid #ddd;padding:0.6em;overflow-x:auto;font-
 
 /// The page: head, title, metadata line and the caution.
 fn open(title: &str, version: &str, input: Option<&InputEcho>) -> String {
-    let mut h = String::new();
-    let _ = write!(h, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>{}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n<h1>{}</h1>\n", esc(title), esc(title));
     let source =
         input.map_or("an exchanger built in code (no case file)".to_string(), |i| format!("case file {} (SHA-256 {})", esc(&i.origin), esc(&i.sha256)));
+    open_with(title, version, &source)
+}
+
+/// [`open`] with the source line given (already escaped HTML).
+fn open_with(title: &str, version: &str, source: &str) -> String {
+    let mut h = String::new();
+    let _ = write!(h, "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>{}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n<h1>{}</h1>\n", esc(title), esc(title));
     let _ = writeln!(h, "<p class=\"meta\">Written by hxgrid {}; {source}.</p>", esc(version));
     let _ = writeln!(h, "<div class=\"caution\"><strong>Caution.</strong> {}</div>", esc(CAUTION));
     h
@@ -313,7 +318,7 @@ pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
                 s(v.settling_63_s),
                 s(v.settling_95_s),
                 s(v.settling_99_s),
-                opt(v.overshoot_percent, |x| format!("{} %", sig(x, 3))),
+                opt(v.overshoot_percent, |x| format!("{x:.2} %")),
                 opt(o.steady_final_C, |x| q(x, "°C")),
                 format!("{} at {} s", q(o.min_C, "°C"), sig(o.min_at_s, 5)),
                 format!("{} at {} s", q(o.max_C, "°C"), sig(o.max_at_s, 5)),
@@ -339,7 +344,7 @@ pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
                         s(v.settling_63_s),
                         s(v.settling_95_s),
                         s(v.settling_99_s),
-                        opt(v.overshoot_percent, |x| format!("{} %", sig(x, 3))),
+                        opt(v.overshoot_percent, |x| format!("{x:.2} %")),
                         q(v.swing_K, "K"),
                         format!("{} s", num(c.window_end_s)),
                     ]
@@ -389,7 +394,8 @@ pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
 /// report.html of a sweep: what was swept, the plot and every point.
 pub fn sweep(m: &super::design::SweepManifest, csv: &str, path: &Path) -> Result<(), OutputError> {
     let dir = path.parent().unwrap_or(Path::new("."));
-    let mut h = open(&format!("{}: sweep", m.case), &m.hxgrid_version, None);
+    let source = format!("case {} (SHA-256 {})", esc(&m.case), esc(&m.input_sha256));
+    let mut h = open_with(&format!("{}: sweep", m.case), &m.hxgrid_version, &source);
     let _ = writeln!(
         h,
         "<p>Case input SHA-256 {}; {} combination of the swept inputs; {} points, {} without results.</p>",
