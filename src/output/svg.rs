@@ -385,48 +385,38 @@ pub fn temperature_duty(r: &SteadyReport, path: &Path) -> Result<(), OutputError
     root.present().map_err(|x| e(x.to_string()))
 }
 
-/// Reynolds number (upper panel, each stream's validity bands shaded in its colour) and
-/// film coefficient (lower panel, where cells are outside the correlation's range shaded)
-/// along an axial line.
+/// Reynolds number of each stream (one panel each, the correlation's validity range shaded
+/// in the stream's colour) and both film coefficients (lower panel, with the cells outside
+/// the correlation's range shaded) along an axial line.
 pub fn flow(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     let e = plot_err(path);
-    let root = canvas(path, (SIZE.0, SIZE.1 + 200))?;
+    let root = canvas(path, (SIZE.0, SIZE.1 + 440))?;
     let root = titled(&root, &format!("{}: Reynolds number and film coefficient along the exchanger", r.case), path)?;
-    let panels = root.split_evenly((2, 1));
+    let panels = root.split_evenly((3, 1));
     let xr = (0.0, r.length_m);
-    let re = |hot: bool| -> Points { r.profile.iter().filter_map(|p| if hot { p.re_hot } else { p.re_cold }.map(|v| (p.x_m, v))).collect() };
-    let re_curves: Vec<Curve> = [("hot stream", HOT, re(true)), ("cold stream", COLD, re(false))]
-        .into_iter()
-        .filter(|c| !c.2.is_empty())
-        .map(|(l, c, p)| Curve::new(l, c, Look::Line(2), p))
-        .collect();
-    // Both streams' bands in grey when they are the same, else each in its stream's colour.
-    let same = r.reynolds_bands[0] == r.reynolds_bands[1];
-    let bands = |chart: &mut Chart| -> Result<(), OutputError> {
-        let yr = chart.y_range();
-        for (k, color) in [HOT, COLD].into_iter().enumerate() {
-            if re_curves.iter().all(|c| c.color != color) || (same && k == 1) {
-                continue;
-            }
-            let color = if same { WALL } else { color };
+    for (k, (name, color)) in [("hot stream", HOT), ("cold stream", COLD)].into_iter().enumerate() {
+        let pts: Points = r.profile.iter().filter_map(|p| if k == 0 { p.re_hot } else { p.re_cold }.map(|v| (p.x_m, v))).collect();
+        if pts.is_empty() {
+            let caption = format!("{name}: no flow geometry, Reynolds number not computed");
+            panel(&panels[k], &caption, (r.position_label, "Reynolds number"), xr, Some((0.0, 1.0)), &[], &nothing, &e)?;
+            continue;
+        }
+        let bands = |chart: &mut Chart| -> Result<(), OutputError> {
+            let yr = chart.y_range();
             for &(lo, hi) in &r.reynolds_bands[k] {
                 let (lo, hi) = (lo.max(yr.start), hi.min(yr.end));
                 if lo < hi {
-                    chart.draw_series([Rectangle::new([(xr.0, lo), (xr.1, hi)], color.mix(0.08).filled())]).map_err(|x| e(x.to_string()))?;
+                    chart.draw_series([Rectangle::new([(xr.0, lo), (xr.1, hi)], color.mix(0.10).filled())]).map_err(|x| e(x.to_string()))?;
                 }
             }
-        }
-        Ok(())
-    };
-    if re_curves.is_empty() {
-        panel(&panels[0], "no flow geometry: Reynolds number not computed", (r.position_label, "Reynolds number"), xr, Some((0.0, 1.0)), &[], &nothing, &e)?;
-    } else {
-        let caption = if same {
-            "Reynolds number (shaded: where the correlation is inside its published range)"
-        } else {
-            "Reynolds number (shaded: each correlation's published range, in its stream's colour)"
+            Ok(())
         };
-        panel(&panels[0], caption, (r.position_label, "Reynolds number"), xr, None, &re_curves, &bands, &e)?;
+        let caption = if r.reynolds_bands[k].is_empty() {
+            format!("{name}: Reynolds number (its film model states no Re range)")
+        } else {
+            format!("{name}: Reynolds number (shaded: inside the correlation's published range)")
+        };
+        panel(&panels[k], &caption, (r.position_label, "Reynolds number"), xr, None, &[Curve::new("", color, Look::Line(2), pts)], &bands, &e)?;
     }
     let h_curves = [
         Curve::new("hot film", HOT, Look::Line(2), r.profile.iter().map(|p| (p.x_m, p.h_hot_w_m2k)).collect()),
@@ -446,8 +436,8 @@ pub fn flow(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         }
         Ok(())
     };
-    let caption = "film coefficient (shaded: cells outside the correlation's range; upper half cold, lower half hot)";
-    panel(&panels[1], caption, (r.position_label, "h (W/m²·K)"), xr, None, &h_curves, &outside, &e)?;
+    let caption = "film coefficients (shaded: cells outside the correlation's range; upper half cold, lower half hot)";
+    panel(&panels[2], caption, (r.position_label, "h (W/m²·K)"), xr, None, &h_curves, &outside, &e)?;
     root.present().map_err(|x| e(x.to_string()))
 }
 
