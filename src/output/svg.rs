@@ -422,16 +422,27 @@ pub fn flow(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         Curve::new("hot film", HOT, Look::Line(2), r.profile.iter().map(|p| (p.x_m, p.h_hot_w_m2k)).collect()),
         Curve::new("cold film", COLD, Look::Line(2), r.profile.iter().map(|p| (p.x_m, p.h_cold_w_m2k)).collect()),
     ];
-    // Cells outside their correlation's range, shaded over their length.
+    // Cells outside their correlation's range, shaded over their length: one rectangle per
+    // run of such cells (a million-cell profile must not make a million rectangles).
     let dx = r.length_m / r.profile.len().max(1) as f64;
+    let runs = |hot: bool| -> Vec<(f64, f64)> {
+        let mut out: Vec<(f64, f64)> = Vec::new();
+        for p in r.profile.iter().filter(|p| !if hot { p.hot_in_range } else { p.cold_in_range }) {
+            let (a, b) = (p.x_m - 0.5 * dx, p.x_m + 0.5 * dx);
+            match out.last_mut() {
+                Some(last) if a <= last.1 + 1e-9 * dx => last.1 = b,
+                _ => out.push((a, b)),
+            }
+        }
+        out
+    };
     let outside = |chart: &mut Chart| -> Result<(), OutputError> {
         let yr = chart.y_range();
         let (h, w) = (yr.end - yr.start, yr.start);
         for (k, color) in [HOT, COLD].into_iter().enumerate() {
             let (lo, hi) = (w + h * 0.5 * k as f64, w + h * 0.5 * (k + 1) as f64);
-            let cells = r.profile.iter().filter(|p| !if k == 0 { p.hot_in_range } else { p.cold_in_range });
             chart
-                .draw_series(cells.map(|p| Rectangle::new([(p.x_m - 0.5 * dx, lo), (p.x_m + 0.5 * dx, hi)], color.mix(0.10).filled())))
+                .draw_series(runs(k == 0).into_iter().map(|(a, b)| Rectangle::new([(a, lo), (b, hi)], color.mix(0.10).filled())))
                 .map_err(|x| e(x.to_string()))?;
         }
         Ok(())
