@@ -241,7 +241,14 @@ pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     h.push_str("<h2>Local conditions</h2>\n");
     let mut rows = Vec::new();
     for (name, c) in [("hot", &r.hot_conditions), ("cold", &r.cold_conditions)] {
-        let range = |e: &crate::results::Extremes, unit: &str| format!("{} … {}", at(e.min, unit, e.min_at_m), at(e.max, unit, e.max_at_m));
+        // A network's cell by its indices (profiles.csv's i, j, k), an axial line's by position.
+        let range = |e: &crate::results::Extremes, unit: &str| {
+            let one = |v: f64, x: f64, cell: Option<[usize; 3]>| match cell {
+                Some([i, j, k]) => format!("{} at cell ({i}, {j}, {k})", q(v, unit)),
+                None => at(v, unit, x),
+            };
+            format!("{} … {}", one(e.min, e.min_at_m, e.min_cell), one(e.max, e.max_at_m, e.max_cell))
+        };
         rows.push(vec![format!("{name}: heat-transfer area"), q(c.area_m2, "m²")]);
         rows.push(vec![format!("{name}: velocity"), c.velocity_m_s.as_ref().map_or("— (no flow geometry)".into(), |e| range(e, "m/s"))]);
         rows.push(vec![format!("{name}: Reynolds number"), c.reynolds.as_ref().map_or("— (no flow geometry)".into(), |e| range(e, ""))]);
@@ -261,24 +268,44 @@ pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         ]);
     }
     let a = &r.minimum_approach;
-    rows.push(vec!["minimum approach (hot − cold)".into(), at(a.minimum_K, "K", a.at_m)]);
+    let where_ = match a.cell {
+        Some([i, j, k]) => format!("{} at cell ({i}, {j}, {k})", q(a.minimum_K, "K")),
+        None => at(a.minimum_K, "K", a.at_m),
+    };
+    rows.push(vec!["minimum approach (hot − cold)".into(), where_]);
     let rows: Vec<Vec<String>> = rows.into_iter().map(|r| r.into_iter().map(|c| esc(&c)).collect()).collect();
-    table(&mut h, &["quantity", "smallest … largest (where)"], &rows);
+    let head = if r.fields.is_some() {
+        "smallest … largest (where: the cell's i, j, k as in profiles.csv)"
+    } else {
+        "smallest … largest (where: x along the hot stream's flow)"
+    };
+    table(&mut h, &["quantity", head], &rows);
     warnings(&mut h, &r.warnings);
     if let Some(s) = &r.sizing {
         h.push_str("<h2>Sizing</h2>\n");
         value_table(&mut h, &serde_json::to_value(s).expect("serialises"));
     }
+    let network = r.fields.is_some();
     plots(
         &mut h,
         dir,
         &[
-            ("temperatures.svg", "Temperatures along the exchanger, with the lumped hand method's outlets marked"),
+            (
+                "temperatures.svg",
+                if network {
+                    "Hot, cold and wall temperatures over the network's face"
+                } else {
+                    "Temperatures along the exchanger, with the lumped hand method's outlets marked"
+                },
+            ),
             ("tq_diagram.svg", "T–Q diagram with the minimum approach marked"),
-            ("heat_flux.svg", "Local heat flux and overall coefficient beside the lumped single values"),
+            (
+                "heat_flux.svg",
+                if network { "Local heat flux over the network's face" } else { "Local heat flux and overall coefficient beside the lumped single values" },
+            ),
             ("film_coefficients.svg", "Reynolds number and film coefficient along the exchanger, with the correlations' validity shaded"),
             ("pressure.svg", "Absolute pressure along each stream, with the saturation pressure where it matters"),
-            ("outlets.svg", "Outlet temperatures across each outlet face"),
+            ("outlets.svg", "Outlet temperatures across each outlet face, with the mixed means and the lumped hand method's outlets"),
         ],
     )?;
     inputs(&mut h, r.input.as_deref());
