@@ -12,6 +12,9 @@ const COLD: RGBColor = RGBColor(30, 90, 200);
 const WALL: RGBColor = RGBColor(90, 90, 90);
 const SIZE: (u32, u32) = (900, 560);
 
+/// At most this many snapshot profiles are drawn in snapshots.svg (all are in snapshots.csv).
+const SNAPSHOT_CURVES: usize = 40;
+
 /// At most this many points are drawn on one curve: beyond a few thousand a curve looks the
 /// same and the file only grows (a 10⁶-cell profile would make a 100 MB SVG).
 pub const PLOT_POINTS: usize = 4000;
@@ -692,20 +695,28 @@ pub fn snapshots(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
     }
     let e = plot_err(path);
     let root = canvas(path, (SIZE.0, SIZE.1 + 240))?;
-    let root = titled(&root, &format!("{}: temperature profiles at chosen times (later darker)", r.case), path)?;
+    let note = if r.snapshots.len() > SNAPSHOT_CURVES { format!(", {SNAPSHOT_CURVES} of {} drawn", r.snapshots.len()) } else { String::new() };
+    let root = titled(&root, &format!("{}: temperature profiles at chosen times (later darker{note})", r.case), path)?;
     let length = r.faces_m.last().copied().unwrap_or(1.0).max(1e-9);
     // One sequential scale in time order, evenly spread over the snapshots so that close
     // times stay apart; viridis from its light end (early) to its dark end (late), stopping
     // short of its palest tenth, which is too faint on white.
-    let n = r.snapshots.len().max(1);
+    // At most SNAPSHOT_CURVES profiles are drawn (evenly chosen, the first and last kept):
+    // more cannot be told apart, and the file would only grow.
+    let all = r.snapshots.len();
+    let shown: Vec<&crate::solve::transient::Snapshot> = if all <= SNAPSHOT_CURVES {
+        r.snapshots.iter().collect()
+    } else {
+        (0..SNAPSHOT_CURVES).map(|k| &r.snapshots[k * (all - 1) / (SNAPSHOT_CURVES - 1)]).collect()
+    };
+    let n = shown.len().max(1);
     let colour = |k: usize| ViridisRGB.get_color_normalized((0.9 - 0.9 * k as f64 / (n - 1).max(1) as f64) as f32, 0.0, 1.0);
     // At most ten legend entries: every k-th time, the first and last always.
     let every = n.div_ceil(10).max(1);
     let (lo, hi) = span(r.snapshots.iter().flat_map(|s| s.hot_faces_c.iter().chain(&s.cold_faces_c).copied()));
     let areas = root.split_evenly((2, 1));
     for (area, (name, hot)) in areas.iter().zip([("hot stream", true), ("cold stream", false)]) {
-        let curves: Vec<Curve> = r
-            .snapshots
+        let curves: Vec<Curve> = shown
             .iter()
             .enumerate()
             .map(|(k, snap)| {
