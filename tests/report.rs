@@ -352,3 +352,25 @@ fn a_sweep_writes_its_report_too() {
     let last = doc.select(&sel("table")).next_back().unwrap();
     assert_eq!(last.select(&sel("tr")).count(), points + 1);
 }
+
+#[test]
+fn an_uncertainty_run_writes_its_report_too() {
+    let dir = common::Scratch::new("report-uncertainty");
+    let body = std::fs::read_to_string(root().join("cases/water-cooler-design.toml")).unwrap().replace("samples = 400", "samples = 24");
+    std::fs::write(dir.join("u.toml"), body).unwrap();
+    let o = run(&["uncertainty", "u.toml", "--out", "un", "--quiet"], &dir);
+    assert!(o.status.success(), "{}", text(&o));
+    let page = std::fs::read_to_string(dir.join("un/report.html")).unwrap();
+    let doc = Html::parse_document(&page);
+    assert!(doc.errors.is_empty(), "{:?}", doc.errors);
+    for tag in ["script", "link", "img", "iframe", "object", "embed"] {
+        assert_eq!(doc.select(&sel(tag)).count(), 0, "a <{tag}> element");
+    }
+    // The percentiles of every result, as in uncertainty.json.
+    let u = json(&dir.join("un/uncertainty.json"));
+    let body = doc.root_element().text().collect::<String>();
+    for r in u["results"].as_array().unwrap() {
+        assert!(body.contains(r["quantity"].as_str().unwrap()));
+    }
+    assert!(body.contains("pressure equipment") && body.contains(&sha256_hex(&dir.join("u.toml"))));
+}

@@ -348,7 +348,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>, MergeError> {
 }
 
 /// Files of an uncertainty folder.
-pub const UNCERTAINTY_FILES: [&str; 2] = ["uncertainty.json", "samples.csv"];
+pub const UNCERTAINTY_FILES: [&str; 3] = ["uncertainty.json", "samples.csv", "report.html"];
 
 /// Write an uncertainty run: the summary and one row per sample (each input's actual
 /// multiplier or shift, the status, the results).
@@ -389,7 +389,8 @@ pub fn write_uncertainty(dir: &Path, r: &crate::design::uncertainty::Uncertainty
         let p = staging.join("uncertainty.json");
         std::fs::write(&p, serde_json::to_string_pretty(r).expect("a report serialises") + "\n").map_err(io(&p))?;
         let p = staging.join("samples.csv");
-        std::fs::write(&p, &csv).map_err(io(&p))
+        std::fs::write(&p, &csv).map_err(io(&p))?;
+        super::html::uncertainty(r, &staging.join("report.html"))
     })?;
     Ok(UNCERTAINTY_FILES.iter().map(|f| dir.join(f)).collect())
 }

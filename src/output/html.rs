@@ -29,7 +29,7 @@ pub(crate) fn esc(s: &str) -> String {
 const STYLE: &str = "body{font-family:sans-serif;max-width:1000px;margin:1.5em auto;padding:0 1em;color:#222;line-height:1.4}\
 h1{font-size:1.6em;margin-bottom:0.2em}h2{font-size:1.25em;border-bottom:1px solid #ccc;margin-top:1.6em}\
 table{border-collapse:collapse;margin:0.6em 0}td,th{border:1px solid #ccc;padding:3px 8px;text-align:left;vertical-align:top}\
-th{background:#f2f2f2}td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}\
+th{background:#f2f2f2;overflow-wrap:anywhere}td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}\
 .caution{border:2px solid #b35900;background:#fff4e5;padding:0.6em 1em;margin:1em 0}\
 .warn{background:#fffbe6;border-left:4px solid #d4a000;padding:0.3em 0.8em;margin:0.3em 0}\
 figure{margin:1em 0}figcaption{font-size:0.9em;color:#555}svg{max-width:100%;height:auto}\
@@ -136,6 +136,23 @@ fn value_table(h: &mut String, v: &serde_json::Value) {
         serde_json::Value::Array(a) if a.iter().all(|x| !x.is_object()) => {
             let parts: Vec<String> = a.iter().map(|x| esc(&scalar(x))).collect();
             h.push_str(&parts.join(", "));
+        }
+        // An array of flat records: one table, a column per key.
+        serde_json::Value::Array(a) if a.iter().all(|x| x.as_object().is_some_and(|m| m.values().all(|v| !v.is_object() && !v.is_array()))) => {
+            let head: Vec<&String> = a[0].as_object().map(|m| m.keys().collect()).unwrap_or_default();
+            h.push_str("<table>\n<tr>");
+            for k in &head {
+                let _ = write!(h, "<th>{}</th>", esc(k));
+            }
+            h.push_str("</tr>\n");
+            for x in a {
+                h.push_str("<tr>");
+                for k in &head {
+                    let _ = write!(h, "<td>{}</td>", esc(&scalar(&x[k.as_str()])));
+                }
+                h.push_str("</tr>\n");
+            }
+            h.push_str("</table>\n");
         }
         serde_json::Value::Array(a) => {
             for x in a {
@@ -441,6 +458,36 @@ pub fn sweep(m: &super::design::SweepManifest, csv: &str, path: &Path) -> Result
     let rows: Vec<Vec<String>> =
         lines.map(|l| csv_fields(l).iter().map(|c| esc(&c.parse::<f64>().map_or_else(|_| c.clone(), |v| sig(v, 6)))).collect()).collect();
     table(&mut h, &head, &rows);
+    std::fs::write(path, close(h)).map_err(io(path))
+}
+
+/// report.html of an uncertainty run: the percentiles beside the nominal rating, the main
+/// contributors and the inputs with their sources.
+pub fn uncertainty(r: &crate::design::uncertainty::UncertaintyReport, path: &Path) -> Result<(), OutputError> {
+    let source = format!("case {} (SHA-256 {})", esc(&r.case), esc(&r.input_sha256));
+    let mut h = open_with(&format!("{}: uncertainty", r.case), r.hxgrid_version, &source);
+    let _ = writeln!(h, "<p>{} samples ({}, seed {}), {} without results, {} cells each.</p>", r.samples, esc(r.method), r.seed, r.samples_failed, r.cells);
+    h.push_str("<h2>Results</h2>\n");
+    let rows: Vec<Vec<String>> = r
+        .results
+        .iter()
+        .map(|x| {
+            let g = |v: f64| sig(v, 6);
+            vec![esc(x.quantity), g(x.nominal), opt(x.grid_error, |v| sig(v, 3)), g(x.p05), g(x.p50), g(x.p95), g(x.mean), sig(x.standard_deviation, 4)]
+        })
+        .collect();
+    table(&mut h, &["quantity", "nominal", "grid error", "P05", "P50", "P95", "mean", "standard deviation"], &rows);
+    h.push_str("<h2>Main contributors</h2>\n");
+    value_table(&mut h, &serde_json::to_value(&r.contributors).expect("serialises"));
+    h.push_str("<h2>Inputs and their sources</h2>\n");
+    value_table(&mut h, &serde_json::to_value(&r.inputs).expect("serialises"));
+    if !r.notes.is_empty() {
+        h.push_str("<h2>Notes</h2>\n");
+        for n in &r.notes {
+            let _ = writeln!(h, "<p class=\"warn\">{}</p>", esc(n));
+        }
+    }
+    let _ = writeln!(h, "<div class=\"caution\"><strong>Caution.</strong> {}</div>", esc(CAUTION));
     std::fs::write(path, close(h)).map_err(io(path))
 }
 
