@@ -45,9 +45,8 @@ pub fn overshoot_percent(values: &[f64]) -> f64 {
 const NEGLIGIBLE_CHANGE_K: f64 = 0.1;
 
 /// The response of `values` at `times` (one window), measured from `t0`. Settling and
-/// overshoot are left out (None) when the net change is negligible: under
-/// 0.1 K or under 5 % of the swing (a disturbance that returns), where a
-/// percentage of the change would be meaningless.
+/// overshoot are left out (None) when the net change is negligible, under 0.1 K or under
+/// 5 % of the swing (a disturbance that returns), where a percentage of it is meaningless.
 pub fn response(times: &[f64], values: &[f64], t0: f64) -> Response {
     let (first, last) = (values[0], *values.last().expect("at least one sample"));
     let change = last - first;

@@ -238,8 +238,13 @@ impl Stream {
     /// surface, K·m/W: convection plus fouling on this side's area, both divided by the
     /// overall surface efficiency η_o of a finned surface (Incropera Eq. 11.5).
     pub fn surface_resistance_per_length(&self, film: &FilmResult) -> f64 {
-        let a = self.channel.area_per_length_m * film.surface_efficiency;
-        1.0 / (film.h * a) + self.fouling_m2k_w / a
+        self.film_resistance_per_length(film) + self.fouling_m2k_w / (self.channel.area_per_length_m * film.surface_efficiency)
+    }
+
+    /// The convection part of [`Stream::surface_resistance_per_length`], 1/(h η_o A), K·m/W:
+    /// the drop from the bulk to the wetted surface per unit heat rate per metre.
+    pub fn film_resistance_per_length(&self, film: &FilmResult) -> f64 {
+        1.0 / (film.h * (self.channel.area_per_length_m * film.surface_efficiency))
     }
 }
 

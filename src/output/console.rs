@@ -205,15 +205,7 @@ pub fn steady(r: &SteadyReport) -> String {
     }
     let _ = writeln!(out, "\nlocal conditions (smallest … largest, with where):");
     let sig = |v: f64| crate::text::sig(v, 4);
-    // Where: x on an axial line, a network's cell (i, j, k as in profiles.csv).
-    let place = |x: f64, cell: Option<[usize; 3]>| match cell {
-        Some([i, j, k]) => format!("cell ({i}, {j}, {k})"),
-        None => format!("{} m", sig(x)),
-    };
-    let range = |e: &crate::results::Extremes, unit: &str| {
-        let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
-        format!("{}{u} at {} … {}{u} at {}", sig(e.min), place(e.min_at_m, e.min_cell), sig(e.max), place(e.max_at_m, e.max_cell))
-    };
+    let range = super::extremes;
     for (name, c) in [("hot", &r.hot_conditions), ("cold", &r.cold_conditions)] {
         let _ = writeln!(out, "  {name:<5} area {} m²", sig(c.area_m2));
         if let Some(v) = &c.velocity_m_s {
@@ -232,7 +224,7 @@ pub fn steady(r: &SteadyReport) -> String {
         }
     }
     let a = &r.minimum_approach;
-    let _ = writeln!(out, "  minimum approach {} K at {}", sig(a.minimum_K), place(a.at_m, a.cell));
+    let _ = writeln!(out, "  minimum approach {}", super::value_at(a.minimum_K, "K", a.at_m, a.cell));
     let _ = writeln!(out, "\nenergy imbalance (hot released − cold gained): {:.3e} W", r.energy_imbalance_W);
     if let Some(g) = &r.grid_error_estimate {
         let _ = writeln!(

@@ -178,11 +178,6 @@ fn full_summary(h: &mut String, name: &str, v: &serde_json::Value) {
     h.push_str("</details>\n");
 }
 
-/// "value at x = … m".
-fn at(v: f64, unit: &str, x: f64) -> String {
-    format!("{} at {} m", q(v, unit), sig(x, 4))
-}
-
 /// report.html of a steady rating (run and size).
 pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     let dir = path.parent().unwrap_or(Path::new("."));
@@ -258,14 +253,7 @@ pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     h.push_str("<h2>Local conditions</h2>\n");
     let mut rows = Vec::new();
     for (name, c) in [("hot", &r.hot_conditions), ("cold", &r.cold_conditions)] {
-        // A network's cell by its indices (profiles.csv's i, j, k), an axial line's by position.
-        let range = |e: &crate::results::Extremes, unit: &str| {
-            let one = |v: f64, x: f64, cell: Option<[usize; 3]>| match cell {
-                Some([i, j, k]) => format!("{} at cell ({i}, {j}, {k})", q(v, unit)),
-                None => at(v, unit, x),
-            };
-            format!("{} … {}", one(e.min, e.min_at_m, e.min_cell), one(e.max, e.max_at_m, e.max_cell))
-        };
+        let range = super::extremes;
         rows.push(vec![format!("{name}: heat-transfer area"), q(c.area_m2, "m²")]);
         rows.push(vec![format!("{name}: velocity"), c.velocity_m_s.as_ref().map_or("— (no flow geometry)".into(), |e| range(e, "m/s"))]);
         rows.push(vec![format!("{name}: Reynolds number"), c.reynolds.as_ref().map_or("— (no flow geometry)".into(), |e| range(e, ""))]);
@@ -285,11 +273,7 @@ pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
         ]);
     }
     let a = &r.minimum_approach;
-    let where_ = match a.cell {
-        Some([i, j, k]) => format!("{} at cell ({i}, {j}, {k})", q(a.minimum_K, "K")),
-        None => at(a.minimum_K, "K", a.at_m),
-    };
-    rows.push(vec!["minimum approach (hot − cold)".into(), where_]);
+    rows.push(vec!["minimum approach (hot − cold)".into(), super::value_at(a.minimum_K, "K", a.at_m, a.cell)]);
     let rows: Vec<Vec<String>> = rows.into_iter().map(|r| r.into_iter().map(|c| esc(&c)).collect()).collect();
     let head = if r.fields.is_some() {
         "smallest … largest (where: the cell's i, j, k as in profiles.csv)"
@@ -331,6 +315,12 @@ pub fn steady(r: &SteadyReport, path: &Path) -> Result<(), OutputError> {
     std::fs::write(path, close(h)).map_err(io(path))
 }
 
+/// A response's settling times to 63, 95 and 99 % and its overshoot ("—" where not set).
+fn settling_and_overshoot(v: &crate::results::Response) -> [String; 4] {
+    let s = |v: Option<f64>| opt(v, |x| q(x, "s"));
+    [s(v.settling_63_s), s(v.settling_95_s), s(v.settling_99_s), opt(v.overshoot_percent, |x| format!("{x:.2} %"))]
+}
+
 /// report.html of a transient run.
 pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
     let dir = path.parent().unwrap_or(Path::new("."));
@@ -350,23 +340,18 @@ pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
         let _ = writeln!(h, "<p class=\"warn\">Stopped early at t = {} s: {}. The results end there.</p>", num(stop.time_s), esc(&stop.reason));
     }
     let _ = writeln!(h, "<h2>Outlet response</h2>\n<p>Measured from t = {} s to the end.</p>", num(r.reference_time_s));
-    let s = |v: Option<f64>| opt(v, |x| q(x, "s"));
     let rows: Vec<Vec<String>> = [("hot outlet", &r.hot_outlet), ("cold outlet", &r.cold_outlet)]
         .iter()
         .map(|(name, o)| {
             let v = &o.response;
-            vec![
-                name.to_string(),
-                q(v.initial_C, "°C"),
-                q(v.final_C, "°C"),
-                s(v.settling_63_s),
-                s(v.settling_95_s),
-                s(v.settling_99_s),
-                opt(v.overshoot_percent, |x| format!("{x:.2} %")),
+            let mut row = vec![name.to_string(), q(v.initial_C, "°C"), q(v.final_C, "°C")];
+            row.extend(settling_and_overshoot(v));
+            row.extend([
                 opt(o.steady_final_C, |x| q(x, "°C")),
                 format!("{} at {} s", q(o.min_C, "°C"), sig(o.min_at_s, 5)),
                 format!("{} at {} s", q(o.max_C, "°C"), sig(o.max_at_s, 5)),
-            ]
+            ]);
+            row
         })
         .map(|r| r.into_iter().map(|c| esc(&c)).collect())
         .collect();
@@ -381,17 +366,10 @@ pub fn transient(r: &TransientReport, path: &Path) -> Result<(), OutputError> {
             .flat_map(|c| {
                 let what = format!("{} {} {} → {} {} ({}–{} s)", c.input, c.kind, num(c.from), num(c.to), c.unit, num(c.start_s), num(c.end_s));
                 [("hot outlet", &c.hot_outlet), ("cold outlet", &c.cold_outlet)].map(|(name, v)| {
-                    vec![
-                        what.clone(),
-                        name.to_string(),
-                        format!("{:+.3} K", v.change_K),
-                        s(v.settling_63_s),
-                        s(v.settling_95_s),
-                        s(v.settling_99_s),
-                        opt(v.overshoot_percent, |x| format!("{x:.2} %")),
-                        q(v.swing_K, "K"),
-                        format!("{} s", num(c.window_end_s)),
-                    ]
+                    let mut row = vec![what.clone(), name.to_string(), format!("{:+.3} K", v.change_K)];
+                    row.extend(settling_and_overshoot(v));
+                    row.extend([q(v.swing_K, "K"), format!("{} s", num(c.window_end_s))]);
+                    row
                 })
             })
             .map(|r| r.into_iter().map(|c| esc(&c)).collect())

@@ -66,6 +66,23 @@ pub enum OutputError {
     },
 }
 
+/// "v unit at x m" on an axial line, "v unit at cell (i, j, k)" in a network (the cell's
+/// indices as in profiles.csv); 4 significant digits. Shared by the printed summary and the
+/// report.
+pub(crate) fn value_at(v: f64, unit: &str, x_m: f64, cell: Option<[usize; 3]>) -> String {
+    let sig = |v: f64| crate::text::sig(v, 4);
+    let u = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+    match cell {
+        Some([i, j, k]) => format!("{}{u} at cell ({i}, {j}, {k})", sig(v)),
+        None => format!("{}{u} at {} m", sig(v), sig(x_m)),
+    }
+}
+
+/// "smallest … largest", each with where (see [`value_at`]).
+pub(crate) fn extremes(e: &crate::results::Extremes, unit: &str) -> String {
+    format!("{} … {}", value_at(e.min, unit, e.min_at_m, e.min_cell), value_at(e.max, unit, e.max_at_m, e.max_cell))
+}
+
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> OutputError + '_ {
     move |source| OutputError::Io { path: path.display().to_string(), source }
 }

@@ -374,9 +374,10 @@ pub fn temperature_duty(r: &SteadyReport, path: &Path) -> Result<(), OutputError
     let root = canvas(path, SIZE)?;
     let q: Vec<f64> = r.duty_faces_w.iter().map(|q| q * 1e-3).collect();
     let along = |v: &[f64]| -> Points { q.iter().copied().zip(v.iter().copied()).collect() };
-    let pinch_q = r.faces_m.iter().position(|&x| x == r.minimum_approach.at_m).and_then(|j| q.get(j).copied()).unwrap_or(0.0);
+    // The pinch face: where the summary found the minimum approach.
     let j = r.faces_m.iter().position(|&x| x == r.minimum_approach.at_m).unwrap_or(0);
-    let (th, tc) = (r.hot_faces_c.get(j).copied().unwrap_or(0.0), r.cold_faces_c.get(j).copied().unwrap_or(0.0));
+    let at = |v: &[f64]| v.get(j).copied().unwrap_or(0.0);
+    let (pinch_q, th, tc) = (at(&q), at(&r.hot_faces_c), at(&r.cold_faces_c));
     let curves = [
         Curve::new("hot stream", HOT, Look::Line(2), along(&r.hot_faces_c)),
         Curve::new("cold stream", COLD, Look::Line(2), along(&r.cold_faces_c)),

@@ -271,8 +271,6 @@ pub(crate) fn assemble(
         let in_range = [within(&ex.hot, &d.hot_props, d.hot_bulk_c, &d.hot_film), within(&ex.cold, &d.cold_props, d.cold_bulk_c, &d.cold_film)];
         outside[0] += usize::from(!in_range[0]);
         outside[1] += usize::from(!in_range[1]);
-        // The wetted surface: the bulk less the drop across the film (on η_o A).
-        let film_r = |s: &crate::model::Stream, f: &crate::transfer::FilmResult| 1.0 / (f.h * s.channel.area_per_length_m * f.surface_efficiency);
         let (p_hot, p_cold) = (centre(&hot_faces_pa, i), centre(&cold_faces_pa, i));
         let velocity = |s: &crate::model::Stream, bulk: f64, p: Option<f64>| {
             s.channel.flow_area_m2.map(|a| s.mass_flow_kg_s / (a * s.fluid.density_at(bulk, p.unwrap_or(s.inlet_pressure_pa))))
@@ -287,8 +285,9 @@ pub(crate) fn assemble(
             hot_c: d.hot_bulk_c,
             cold_c: d.cold_bulk_c,
             wall_c: *wall,
-            hot_surface_c: d.hot_bulk_c - d.balance.hot_to_wall_w / dx * film_r(&ex.hot, &d.hot_film),
-            cold_surface_c: d.cold_bulk_c + d.balance.wall_to_cold_w / dx * film_r(&ex.cold, &d.cold_film),
+            // The wetted surface: the bulk less the drop across the film.
+            hot_surface_c: d.hot_bulk_c - d.balance.hot_to_wall_w / dx * ex.hot.film_resistance_per_length(&d.hot_film),
+            cold_surface_c: d.cold_bulk_c + d.balance.wall_to_cold_w / dx * ex.cold.film_resistance_per_length(&d.cold_film),
             heat_rate_per_length_w_m: q_per_length,
             heat_flux_w_m2: q_per_length / ex.reference_area_per_length_m,
             u_w_m2k: d.ua_per_length_w_mk / ex.reference_area_per_length_m,
@@ -588,8 +587,9 @@ fn where_outside(profile: &[ProfileRow], hot: bool, film: &dyn crate::transfer::
     let at = if x.max - x.min > 0.0 { format!(" at x = {}–{} m", num(x.min), num(x.max)) } else { format!(" at x = {} m", num(x.min)) };
     let re: Vec<f64> = out.iter().filter_map(|r| if hot { r.re_hot } else { r.re_cold }).collect();
     let pr: Vec<f64> = out.iter().map(|r| if hot { r.pr_hot } else { r.pr_cold }).collect();
+    let bounds = |v: &[f64]| v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
     let range = |v: &[f64]| {
-        let (lo, hi) = v.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+        let (lo, hi) = bounds(v);
         let sig = |v: f64| crate::text::sig(v, 4);
         if hi - lo > 1e-9 * hi.abs() {
             format!("{}–{}", sig(lo), sig(hi))
@@ -600,19 +600,20 @@ fn where_outside(profile: &[ProfileRow], hot: bool, film: &dyn crate::transfer::
     let mut what = Vec::new();
     if !re.is_empty() {
         what.push(format!("Re {}", range(&re)));
-        // The regimes of flow in a duct (common practice: laminar below 2300, turbulent
-        // above 10⁴) where the correlation is one for ducts.
+        // The regimes of flow in a duct where the correlation is one for ducts (laminar to
+        // 2300, turbulent from 10⁴: the internal-flow models' own bounds).
         if matches!(film.name(), "gnielinski" | "dittus_boelter" | "sieder_tate" | "pitla") {
-            let (lo, hi) = re.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &x| (a.min(x), b.max(x)));
+            use crate::transfer::{RE_LAMINAR, RE_TURBULENT};
             let regime = |re: f64| {
-                if re <= 2300.0 {
+                if re <= RE_LAMINAR {
                     "laminar"
-                } else if re < 1e4 {
+                } else if re < RE_TURBULENT {
                     "transitional"
                 } else {
                     "turbulent"
                 }
             };
+            let (lo, hi) = bounds(&re);
             let (a, b) = (regime(lo), regime(hi));
             what.push(if a == b { a.to_string() } else { format!("{a} to {b}") });
         }

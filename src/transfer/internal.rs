@@ -117,7 +117,7 @@ impl FilmCorrelation for Gnielinski {
         "laminar Re < 2300; turbulent 10⁴ ≤ Re ≤ 5·10⁶, 0.5 ≤ Pr ≤ 2000 (Gnielinski 1976)".into()
     }
     fn reynolds_bands(&self) -> Vec<(f64, f64)> {
-        vec![(0.0, RE_LAMINAR), (1e4, 5e6)]
+        vec![(0.0, RE_LAMINAR), (RE_TURBULENT, 5e6)]
     }
     fn stated_accuracy(&self) -> Option<super::film::StatedAccuracy> {
         Some(super::film::StatedAccuracy { percent: 10.0, source: GNIELINSKI_ACCURACY })
@@ -274,7 +274,7 @@ impl FilmCorrelation for InternalFlow {
     fn reynolds_bands(&self) -> Vec<(f64, f64)> {
         // Blended cells (2300 < Re < 10⁴) are counted outside every range.
         let low = match (self.transition, self.turbulent) {
-            (Transition::Blend, _) | (_, Turbulent::DittusBoelter | Turbulent::SiederTate) => 1e4,
+            (Transition::Blend, _) | (_, Turbulent::DittusBoelter | Turbulent::SiederTate) => RE_TURBULENT,
             _ => 3000.0,
         };
         let high = if matches!(self.turbulent, Turbulent::Gnielinski | Turbulent::Pitla) { 5e6 } else { f64::INFINITY };

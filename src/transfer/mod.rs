@@ -19,6 +19,7 @@ pub use film::{
     ScaledFilm, StatedAccuracy, Transition, TubeBank, Turbulent, WallCorrection, Zukauskas,
 };
 pub use fin::Fin;
+pub use internal::{RE_LAMINAR, RE_TURBULENT};
 pub use shell::{BellDelaware, Kern, PitchLayout, ShellBundle};
 pub use wall::Wall;
 

@@ -319,9 +319,10 @@ pub(super) fn signed_largest(v: &[f64]) -> (usize, f64) {
 }
 
 /// A cell's through-thickness wall difference, K: the heat into the wall from the hot side
-/// and out to the cold side, each through half the wall's conduction resistance.
-pub(super) fn across_wall_k(e: &Exchanger, d: &crate::model::CellDetail, dx_m: f64) -> f64 {
-    0.5 * e.wall.resistance_per_length() * (d.balance.hot_to_wall_w + d.balance.wall_to_cold_w) / dx_m
+/// and out to the cold side, each through half the wall's conduction resistance
+/// `half_wall_r` (K·m/W; the caller evaluates it once, not per cell).
+pub(super) fn across_wall_k(half_wall_r: f64, d: &crate::model::CellDetail, dx_m: f64) -> f64 {
+    half_wall_r * (d.balance.hot_to_wall_w + d.balance.wall_to_cold_w) / dx_m
 }
 
 impl Sample {

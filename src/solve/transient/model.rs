@@ -63,6 +63,7 @@ impl Model<'_> {
         let inlet = [hf.enthalpy(e.hot.inlet_c), cf.enthalpy(e.cold.inlet_c)];
         let cold_forward = e.arrangement != crate::model::Arrangement::Counterflow;
         work.across.clear();
+        let half_wall_r = 0.5 * e.wall.resistance_per_length();
         for i in 0..n {
             let t = &work.temps[i];
             // The upstream cell's outflow is this cell's inflow (same value: reuse its enthalpy).
@@ -75,7 +76,7 @@ impl Model<'_> {
             let cold_up = if cold_forward { i.checked_sub(1) } else { (i + 1 < n).then_some(i + 1) };
             let h_cold_in = from(cold_up, 1, t.cold_in, cf);
             let d = e.cell_given(self.dx, [1.0, 1.0], t, [h_hot_in, work.out[i][0], h_cold_in, work.out[i][1]]);
-            work.across.push(across_wall_k(e, &d, self.dx));
+            work.across.push(across_wall_k(half_wall_r, &d, self.dx));
             let res = d.balance.steady_residual();
             r[i] = Vector3::new(res[0], -res[1], res[2]);
             unknown_h[i] = [

@@ -79,12 +79,13 @@ impl NetModel<'_> {
         });
         let (nodes, _) = z.split_at(nn);
         let cells: Vec<_> = (0..self.net.cells.len()).map(|k| temps(self.net, e.scheme, sys.inlet, nodes, walls, k)).collect();
+        let half_wall_r = 0.5 * e.wall.resistance_per_length();
         let across_k: Vec<f64> = cells
             .iter()
             .zip(&self.net.cells)
             .map(|(t, c)| {
                 let dx = self.ex.length_m * c.area_share;
-                super::across_wall_k(&e, &e.cell_shared(dx, c.flow_share, t), dx)
+                super::across_wall_k(half_wall_r, &e.cell_shared(dx, c.flow_share, t), dx)
             })
             .collect();
         let wall = super::WallState { wall_c: walls, rate, across: super::signed_largest(&across_k), position: &|k| self.position_m(k) };
